@@ -1,0 +1,3 @@
+from regentime.cli import main
+
+raise SystemExit(main())

@@ -1,0 +1,95 @@
+"""Command-line entry point: ``regentime COMMAND ...``.
+
+Each command lives in ``regentime/commands/<name>.py`` with ``register(subparsers)`` and
+``run(args) -> int``.  This module only builds the parser and turns the library's errors into
+one clean line and the documented exit code (DESIGN.md): 0 ok, 2 input wrong, 3 plan cannot be
+met, 1 internal error.  Nothing heavy is imported here.
+"""
+
+from __future__ import annotations
+
+import argparse
+import importlib
+import sys
+
+COMMANDS = ("plan", "buildup", "check", "contrast", "stability", "trace", "materials", "tui")
+
+EPILOG = """examples:
+  regentime plan cavities/ti_sapphire_1khz.yaml
+  regentime plan cavities/ti_sapphire_1khz.yaml --format json --output plan.json
+  regentime materials
+
+exit codes: 0 ok (warnings are printed), 2 input wrong, 3 plan cannot be met, 1 internal error.
+Safety: regens are Class 4 lasers and Pockels-cell drivers switch kilovolts; follow IEC 60825-1 /
+ANSI Z136.1, IEC 61010-1, local rules and your laser safety officer."""
+
+
+def build_parser() -> argparse.ArgumentParser:
+    from regentime import __version__
+
+    parser = argparse.ArgumentParser(
+        prog="regentime",
+        description="Plan a regenerative amplifier from a cavity file: round-trip time, build-up, "
+        "switch-out round trip, Pockels-cell timing, delay-generator table and contrast.",
+        epilog=EPILOG,
+        formatter_class=argparse.RawDescriptionHelpFormatter,
+    )
+    parser.add_argument("--version", action="version", version=f"regentime {__version__}")
+    sub = parser.add_subparsers(dest="command", metavar="COMMAND")
+    for name in COMMANDS:
+        try:
+            module = importlib.import_module(f"regentime.commands.{name}")
+        except ModuleNotFoundError as exc:  # a command still being written
+            if exc.name != f"regentime.commands.{name}":
+                raise
+            continue
+        module.register(sub)
+    return parser
+
+
+def main(argv: list[str] | None = None) -> int:
+    from regentime.errors import InputError, InputErrors, PlanError, RegentimeError
+
+    parser = build_parser()
+    args = parser.parse_args(argv)
+    if not getattr(args, "run", None):
+        parser.print_help()
+        return 2
+    try:
+        return int(args.run(args) or 0)
+    except InputErrors as exc:
+        for err in exc.errors:
+            print(f"error: {err.one_line()}", file=sys.stderr)
+        return 2
+    except InputError as exc:
+        print(f"error: {exc.one_line()}", file=sys.stderr)
+        return 2
+    except PlanError as exc:
+        print(f"cannot plan: {exc}", file=sys.stderr)
+        return 3
+    except RegentimeError as exc:
+        print(f"error: {exc}", file=sys.stderr)
+        return exc.exit_code
+    except KeyboardInterrupt:
+        print("interrupted", file=sys.stderr)
+        return 130
+    except BrokenPipeError:
+        return 0
+    except Exception as exc:  # noqa: BLE001 - the one place that turns a bug into exit 1
+        import traceback
+
+        print(
+            f"internal error (a bug in regentime): {type(exc).__name__}: {exc}\n"
+            "Please report it with the cavity file and the command line; "
+            "set REGENTIME_DEBUG=1 to see the traceback.",
+            file=sys.stderr,
+        )
+        import os
+
+        if os.environ.get("REGENTIME_DEBUG"):
+            traceback.print_exc()
+        return 1
+
+
+if __name__ == "__main__":  # pragma: no cover
+    sys.exit(main())

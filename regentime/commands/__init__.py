@@ -1,0 +1,1 @@
+"""One module per command; each has ``register(subparsers)`` and ``run(args) -> int``."""
