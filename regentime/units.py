@@ -254,7 +254,7 @@ def parse_quantity(value: Any, dimension: str, path: str = "") -> float:
         if not unit:
             return number
         if unit == "%" and dimension == "ratio":
-            return number / 100.0
+            return float(Decimal(number_text).scaleb(-2))  # 99.9 % -> 0.999 exactly rounded
         if unit == "dB" and dimension == "ratio_or_db":
             return 10.0 ** (number / 10.0)
         allowed = {"ratio": "no unit or '%'", "ratio_or_db": "no unit or 'dB'"}.get(
