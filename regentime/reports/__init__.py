@@ -1,0 +1,1 @@
+"""Formatters: take result objects, return strings.  Nothing here computes physics or prints."""

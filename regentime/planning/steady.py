@@ -1,0 +1,101 @@
+"""Steady state of a continuously pumped regen across shots (period-1 fixed point).
+
+The shot-to-shot map x_{s+1} = F_N(x_s) of the stored energy at injection (DESIGN.md "Gain",
+continuous pump; M. Grishin, Opt. Express 15, 9434 (2007)) always has a fixed point between
+0 and the equilibrium Rτ (F_N(0) > 0, F_N(Rτ) ≤ Rτ).  It is found for every candidate N at once
+by the Illinois variant of regula falsi; it is the operating point if |F_N'(x*)| < 1 (period 1).
+Otherwise the shot sequence is iterated and its period classified.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from regentime.physics.buildup import GainModel, RoundTripPath, shot
+
+_REL_TOL = 1e-10  # relative tolerance on the stored energy at the fixed point
+_MAX_ITER = 80
+
+
+def shot_map(gm: GainModel, path: RoundTripPath, seed, stored, n_rt, period):
+    """F_N: stored energy at injection (J, batch) -> (output energy, next stored energy) (J)."""
+    j = gm.stored_fluence(stored)
+    out, j_next = shot(gm, path, seed, j, n_rt, period)
+    return out, gm.stored_in(j_next)
+
+
+def fixed_points(gm: GainModel, path: RoundTripPath, seed, n_rt, period, pump_rate=None):
+    """Period-1 fixed points x* (J) and slopes F_N'(x*) for a batch of N (and pump rates).
+
+    ``n_rt``: integer array (batch); ``pump_rate``: optional array (batch) of R in W that
+    replaces gm.pump_rate.  Returns ``(x_star, slope, output_at_x_star)``.
+    """
+    n_rt = np.asarray(n_rt)
+    if pump_rate is not None:
+        from dataclasses import replace
+
+        gm = replace(gm, pump_rate=np.asarray(pump_rate, dtype=float)[..., None])
+        rate = np.asarray(pump_rate, dtype=float)
+    else:
+        rate = np.full(n_rt.shape, gm.pump_rate)
+    hi = rate * gm.tau + 0.0
+    lo = np.zeros_like(hi)
+    f_lo = shot_map(gm, path, seed, lo, n_rt, period)[1] - lo
+    f_hi = shot_map(gm, path, seed, hi, n_rt, period)[1] - hi
+    side = np.zeros(hi.shape, dtype=int)
+    x = hi.copy()
+    for _ in range(_MAX_ITER):
+        denom = f_lo - f_hi
+        x = np.where(denom != 0, (lo * (-f_hi) + hi * f_lo) / np.where(denom == 0, 1, denom), 0.5 * (lo + hi))
+        fx = shot_map(gm, path, seed, x, n_rt, period)[1] - x
+        if np.all(np.abs(fx) <= _REL_TOL * np.maximum(hi, 1e-300)):
+            break
+        pos = fx > 0
+        # Illinois: halve the retained end's value when the same side is kept twice
+        lo = np.where(pos, x, lo)
+        f_lo = np.where(pos, fx, np.where(side == -1, f_lo * 0.5, f_lo))
+        hi = np.where(pos, hi, x)
+        f_hi = np.where(pos, np.where(side == 1, f_hi * 0.5, f_hi), fx)
+        side = np.where(pos, 1, -1)
+    h = np.maximum(x * 1e-6, 1e-18)
+    out_p, xp = shot_map(gm, path, seed, x + h, n_rt, period)
+    out_m, xm = shot_map(gm, path, seed, np.maximum(x - h, 0), n_rt, period)
+    slope = (xp - xm) / (x + h - np.maximum(x - h, 0))
+    out = shot_map(gm, path, seed, x, n_rt, period)[0]
+    return x, slope, out
+
+
+@dataclass(frozen=True)
+class ShotSequence:
+    period: int  # 1, 2, 4, 8, 16; 0 = irregular
+    outputs: np.ndarray  # the last shots' output energies (J)
+    mean: float
+    minimum: float
+    maximum: float
+
+
+def classify(values: np.ndarray, rel_tol: float = 1e-4, max_period: int = 16) -> int:
+    """Smallest p in 1, 2, 4, …, max_period with |v_i − v_{i−p}| ≤ rel_tol·max|v| over the
+    observed shots, else 0 (irregular)."""
+    scale = max(float(np.max(np.abs(values))), 1e-300)
+    p = 1
+    while p <= max_period:
+        if values.size > 2 * p and np.all(np.abs(values[p:] - values[:-p]) <= rel_tol * scale):
+            return p
+        p *= 2
+    return 0
+
+
+def iterate_shots(gm: GainModel, path: RoundTripPath, seed, n_rt: int, period: float,
+                  transient: int = 400, observe: int = 64) -> ShotSequence:
+    """Iterate the shot map from full storage (Rτ), drop the transient, classify the period."""
+    x = np.array([gm.pump_rate * gm.tau])
+    outs = np.empty(observe)
+    for s in range(transient + observe):
+        out, x = shot_map(gm, path, seed, x, np.array([n_rt]), period)
+        if s >= transient:
+            outs[s - transient] = out[0]
+    p = classify(outs)
+    return ShotSequence(p, outs, float(outs.mean()), float(outs.min()), float(outs.max()))
