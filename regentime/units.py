@@ -283,6 +283,11 @@ def parse_quantity(value: Any, dimension: str, path: str = "") -> float:
     return result
 
 
+_SI_UNIT = {"length": "m", "time": "s", "energy": "J", "power": "W", "frequency": "Hz",
+            "fluence": "J/m^2", "intensity": "W/m^2", "voltage": "V", "eo_coefficient": "m/V",
+            "angle": "rad"}
+
+
 def _trim(x: float, digits: int) -> str:
     s = f"{x:.{digits}g}"
     if "e" in s or "E" in s:
@@ -313,7 +318,10 @@ def format_quantity(si_value: float, dimension: str, digits: int = 6,
     if not math.isfinite(si_value):
         raise ValueError(f"cannot format {si_value!r}")
     unit, factor = dim.display[0]
-    if dim.scientific or si_value == 0:
+    if not dim.scientific and 0 < abs(si_value) < factor:  # below the smallest unit: 1e-18 J
+        unit, factor = _SI_UNIT[dimension], 1.0
+        shown = f"{_trim(si_value, digits)} {unit}"
+    elif dim.scientific or si_value == 0:
         shown = f"{_trim(si_value / factor, digits)} {unit}"
     else:
         mag = abs(si_value)

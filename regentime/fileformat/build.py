@@ -16,7 +16,7 @@ from regentime import model as m
 from regentime.errors import MISSING, InputError, InputErrors
 from regentime.fileformat.loader import (
     DEFAULT_CELL_CONTRAST, DEFAULT_VELOCITY_FACTOR, FORMAT_VERSION, Checker, _BAD, _Shown,
-    _gain_media, _line, _suggest)
+    _gain_media, _key_line, _line, _suggest)
 from regentime.fileformat.schema import DRIVES, ELEMENT_KINDS, ELEMENTS, TOP
 
 def validate(data: Any, source: Optional[str], default_name: str) -> m.Cavity:
@@ -31,7 +31,8 @@ def validate(data: Any, source: Optional[str], default_name: str) -> m.Cavity:
                          line=1, source=where)
     ck = Checker(source)
     if "format" not in data:
-        ck.err("format", MISSING, f"'format: {FORMAT_VERSION}' at the top of the file", 1)
+        ck.errors.append(InputError("format", MISSING, f"'format: {FORMAT_VERSION}' at the top "
+                                    "of the file", line=1, source=where))
     elif data["format"] != FORMAT_VERSION:
         raise InputErrors([InputError(
             "format", data["format"], f"'{FORMAT_VERSION}' (this version of regentime reads "
@@ -85,7 +86,7 @@ def _rules(ck: Checker, data, top: dict, elements: list) -> None:
     n = len(raw) if isinstance(raw, list) else 0
     kinds = {i: k for i, k, _, _ in elements}
     if n and len(kinds) == n:  # every item readable: structural rules make sense
-        line = _line(data, "cavity")
+        line = _key_line(data, "cavity")
         for end in (0, n - 1):
             if kinds[end] != "mirror":
                 ck.err(f"cavity[{end}]", _Shown(f"a {kinds[end]}"),

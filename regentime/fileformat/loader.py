@@ -217,8 +217,11 @@ class Checker:
     def __init__(self, source: Optional[str]) -> None:
         self.source = source
         self.errors: list[InputError] = []
+        self.suggested: set[str] = {"format"}  # paths already covered by another message
 
     def err(self, path: str, value: Any, expected: str, line: Optional[int]) -> None:
+        if value is MISSING and path in self.suggested:
+            return  # "pump.enrgy: ... did you mean 'energy'?" already says it
         self.errors.append(InputError(path, value, expected, line=line, source=self.source))
 
     # -- one value -----------------------------------------------------------------------
@@ -261,9 +264,11 @@ class Checker:
                     out[key] = sub
             else:
                 choices = known_keys(section)
+                hint = _suggest(key, choices)
+                if hint:
+                    self.suggested.add(_join(path, hint.split("'")[1]))
                 self.err(kpath, _Shown(f"unknown key '{key}'"),
-                         f"one of {', '.join(choices)}{_suggest(key, choices)}",
-                         _key_line(data, key) or kline)
+                         f"one of {', '.join(choices)}{hint}", _key_line(data, key) or kline)
         for key, spec in section.fields.items():
             if spec.required and key not in data and spec.dimension != "section":
                 self.err(_join(path, key), MISSING, spec.expected(), line)
