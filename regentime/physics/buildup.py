@@ -194,7 +194,7 @@ def simulate_buildup(gm: GainModel, path: RoundTripPath, seed_energy, stored_ene
     shape = np.broadcast_shapes(seed_energy.shape, stored_energy.shape)
     energy = np.broadcast_to(seed_energy * path.reflection_s, shape).astype(float)
     j_st = gm.stored_fluence(np.broadcast_to(stored_energy, shape))
-    j_eq = gm.stored_fluence(gm.pump_rate * gm.tau) if gm.pump_rate else 0.0
+    j_eq = gm.stored_fluence(gm.pump_rate * gm.tau) if np.any(gm.pump_rate) else 0.0
     decay = np.exp(-path.dt / gm.tau)
     n = int(n_round_trips)
     e_hist = np.empty((n + 1,) + shape)

@@ -36,7 +36,7 @@ def fixed_points(gm: GainModel, path: RoundTripPath, seed, n_rt, period, pump_ra
     if pump_rate is not None:
         from dataclasses import replace
 
-        gm = replace(gm, pump_rate=np.asarray(pump_rate, dtype=float)[..., None])
+        gm = replace(gm, pump_rate=np.asarray(pump_rate, dtype=float))
         rate = np.asarray(pump_rate, dtype=float)
     else:
         rate = np.full(n_rt.shape, gm.pump_rate)
