@@ -74,7 +74,7 @@ def _v(m=0, s=0, j=0, v=0, rad=0) -> tuple[int, ...]:
 DIMENSIONS: dict[str, Dimension] = {d.name: d for d in (
     Dimension("length", "a length", "250 mm", _v(m=1),
               ("nm", "um", "µm", "mm", "cm", "m", "km"),
-              (("nm", 1e-9), ("µm", 1e-6), ("mm", 1e-3), ("m", 1.0))),
+              (("pm", 1e-12), ("nm", 1e-9), ("µm", 1e-6), ("mm", 1e-3), ("m", 1.0))),
     Dimension("time", "a time", "3.5 ns", _v(s=1),
               ("fs", "ps", "ns", "us", "µs", "ms", "s"),
               (("fs", 1e-15), ("ps", 1e-12), ("ns", 1e-9), ("µs", 1e-6), ("ms", 1e-3),

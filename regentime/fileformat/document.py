@@ -123,6 +123,9 @@ class CavityDocument:
         """
         parts = self._resolve(path)
         spec = self.spec(path)
+        if spec.dimension == "section":
+            raise InputError(path, value, "a single key inside this section, e.g. "
+                             f"'{path}.<key>'")
         scalar, python = self._scalar(value, spec, path, self.get(path))
         check_value(python, spec, path)
         self._edit(lambda: self._set_text(parts, scalar))
