@@ -77,24 +77,103 @@ def _pulsed(cavity: Cavity, gm: GainModel, path: RoundTripPath, n: int):
     return one, out[:, 0], s_pump, s_seed
 
 
-def _continuous(cavity: Cavity, gm: GainModel, path: RoundTripPath, n: int):
-    """Steady-state output for every N = 1 … n, and sensitivities at the steady state."""
+_GRID = 160  # stored-energy grid points of the all-N steady-state scan
+
+
+def _roots(x, nxt, out):
+    """Per N: the fixed point of x -> nxt[N](x) on the grid (first sign change of nxt − x,
+    linear interpolation), the output there, the grid bracket and the local slope."""
+    h = nxt - x[None, :]
+    idx = np.argmax(h <= 0, axis=1)
+    idx = np.clip(idx, 1, x.size - 1)
+    rows = np.arange(h.shape[0])
+    h0, h1 = h[rows, idx - 1], h[rows, idx]
+    x0, x1 = x[idx - 1], x[idx]
+    w = np.where(h0 != h1, h0 / np.where(h0 == h1, 1, h0 - h1), 0.0)
+    x_star = x0 + w * (x1 - x0)
+    with np.errstate(divide="ignore", invalid="ignore"):  # output grows ~exponentially with x
+        lo_, hi_ = np.log(out[rows, idx - 1]), np.log(out[rows, idx])
+        o = np.exp(lo_ + w * (hi_ - lo_))
+    o = np.where(np.isfinite(o), o, out[rows, idx - 1] + w * (out[rows, idx] - out[rows, idx - 1]))
+    slope = (nxt[rows, idx] - nxt[rows, idx - 1]) / (x1 - x0)
+    return x_star, o, (x0, x1), slope
+
+
+_SECANT_STEPS = 4  # from the grid's ~1e-3 to ≲1e-9 relative (checked against steady.fixed_points)
+
+
+def _newton(gm, path, seeds, ns, period, x0, slope):
+    """Polish fixed points of the exact shot map: one Newton step with the grid's slope F',
+    then secant steps on h(x) = F(x) − x.  Returns ``(output, x)``."""
+    x_prev = x0
+    h_prev = steady.shot_map(gm, path, seeds, x_prev, ns, period)[1] - x_prev
+    x = np.clip(x_prev - h_prev / np.minimum(slope - 1.0, -1e-3), 0.0, None)
+    for _ in range(_SECANT_STEPS - 1):
+        h = steady.shot_map(gm, path, seeds, x, ns, period)[1] - x
+        dx = x - x_prev
+        dh = h - h_prev
+        ok = (dh != 0) & (dx != 0)
+        step = np.where(ok, h * dx / np.where(ok, dh, 1.0), 0.0)
+        x_prev, h_prev = x, h
+        x = np.clip(x - step, 0.0, None)
+    out, _ = steady.shot_map(gm, path, seeds, x, ns, period)
+    return out, x
+
+
+def _continuous(cavity: Cavity, gm: GainModel, path: RoundTripPath, n: int, must=None):
+    """Steady-state output for every N = 1 … n, and sensitivities at the steady state.
+
+    One build-up per point of a stored-energy grid serves every N at once
+    (:func:`regentime.physics.buildup.shot_every_n`); the fixed point of each N is read off the
+    grid and, for the round trips near the peak, polished to 1e-10 with the exact shot map
+    (:func:`regentime.planning.steady.fixed_points`).  The stored fluence at injection is taken
+    to have the pump's profile (exact for flat-top; an approximation for the ring model).
+    """
+    from regentime.physics.buildup import shot_every_n
+
     period = 1.0 / cavity.repetition_rate
     n_fit = max(1, min(n, int(np.floor(period / path.dt)) - 1))
-    ns = np.arange(1, n_fit + 1)
     d = _DELTA
     seed = cavity.seed.energy
-    rates = np.concatenate([np.full(ns.size, gm.pump_rate * f) for f in (1.0, 1 + d, 1 - d, 1.0, 1.0)])
-    seeds = np.concatenate([np.full(ns.size, seed * f) for f in (1.0, 1.0, 1.0, 1 + d, 1 - d)])
-    n_all = np.tile(ns, 5)
-    _, slope, out = steady.fixed_points(gm, path, seeds, n_all, period, pump_rate=rates)
-    out = out.reshape(5, ns.size)
-    slope = slope.reshape(5, ns.size)[0]
+    variants = ((1.0, 1.0), (1 + d, 1.0), (1 - d, 1.0), (1.0, 1 + d), (1.0, 1 - d))
+    x = np.linspace(0.0, gm.pump_rate * gm.tau * (1 + 2 * d), _GRID if gm.grid.rings == 1 else _GRID // 2)
+    outs, slopes, stars = [], [], []
+    for fp, fs in variants:
+        gm_v = replace(gm, pump_rate=gm.pump_rate * fp)
+        out_g, nxt_g = shot_every_n(gm_v, path, seed * fs, x, n_fit, period)
+        xs, o, _, sl = _roots(x, nxt_g[1:], out_g[1:])
+        outs.append(o)
+        slopes.append(sl)
+        stars.append(xs)
+    outs = np.array(outs)
+    slope = np.array(slopes[0])
+    # polish with Newton steps on the exact shot map (slope from the grid): every N for the
+    # one-ring model, the round trips near the peak (and a given dump) for the ring model
+    nominal = outs[0]
+    if gm.grid.rings == 1:
+        cand = np.arange(n_fit)
+    else:
+        top = int(np.nanargmax(nominal)) + 1
+        cand = np.flatnonzero((nominal >= 0.8 * np.nanmax(nominal)) | (np.arange(n_fit) < 1.6 * top + 10))
+        if must is not None and 1 <= must <= n_fit:
+            cand = np.union1d(cand, [must - 1])
+    if cand.size:
+        nv = len(variants)
+        nn = np.tile(cand + 1, nv)
+        rates = np.concatenate([np.full(cand.size, gm.pump_rate * fp) for fp, _ in variants])
+        seeds = np.concatenate([np.full(cand.size, seed * fs) for _, fs in variants])
+        x0 = np.concatenate([xs[cand] for xs in stars])
+        sl = np.concatenate([sv[cand] for sv in slopes])
+        gm_v = replace(gm, pump_rate=rates)
+        o, x_new = _newton(gm_v, path, seeds, nn, period, x0, sl)
+        polished = np.full(outs.shape, np.nan)  # the grid alone is too coarse to show
+        polished[:, cand] = o.reshape(nv, cand.size)
+        outs = polished
     full = lambda a: np.concatenate([[np.nan], a])  # noqa: E731 - index by N
     with np.errstate(divide="ignore", invalid="ignore"):
-        s_pump = (np.log(out[1]) - np.log(out[2])) / (np.log1p(d) - np.log1p(-d))
-        s_seed = (np.log(out[3]) - np.log(out[4])) / (np.log1p(d) - np.log1p(-d))
-    return full(out[0]), full(s_pump), full(s_seed), full(slope), n_fit
+        s_pump = (np.log(outs[1]) - np.log(outs[2])) / (np.log1p(d) - np.log1p(-d))
+        s_seed = (np.log(outs[3]) - np.log(outs[4])) / (np.log1p(d) - np.log1p(-d))
+    return full(outs[0]), full(s_pump), full(s_seed), full(slope), n_fit
 
 
 def choose_dump(output: np.ndarray, s_pump: np.ndarray, s_seed: np.ndarray, rule) -> tuple[int, str]:
@@ -129,7 +208,7 @@ def plan_buildup(cavity: Cavity, optics: CavityOptics, switching_efficiency: flo
     slope = shots = None
     while True:
         if continuous:
-            output, s_pump, s_seed, slope, n_fit = _continuous(cavity, gm, path, n)
+            output, s_pump, s_seed, slope, n_fit = _continuous(cavity, gm, path, n, must=given)
         else:
             res, output, s_pump, s_seed = _pulsed(cavity, gm, path, n)
             n_fit = n

@@ -26,11 +26,13 @@ def shot_map(gm: GainModel, path: RoundTripPath, seed, stored, n_rt, period):
     return out, gm.stored_in(j_next)
 
 
-def fixed_points(gm: GainModel, path: RoundTripPath, seed, n_rt, period, pump_rate=None):
+def fixed_points(gm: GainModel, path: RoundTripPath, seed, n_rt, period, pump_rate=None,
+                 bracket=None):
     """Period-1 fixed points x* (J) and slopes F_N'(x*) for a batch of N (and pump rates).
 
     ``n_rt``: integer array (batch); ``pump_rate``: optional array (batch) of R in W that
-    replaces gm.pump_rate.  Returns ``(x_star, slope, output_at_x_star)``.
+    replaces gm.pump_rate; ``bracket``: optional (lo, hi) arrays known to enclose x*
+    (default 0 and Rτ).  Returns ``(x_star, slope, output_at_x_star)``.
     """
     n_rt = np.asarray(n_rt)
     if pump_rate is not None:
@@ -40,8 +42,12 @@ def fixed_points(gm: GainModel, path: RoundTripPath, seed, n_rt, period, pump_ra
         rate = np.asarray(pump_rate, dtype=float)
     else:
         rate = np.full(n_rt.shape, gm.pump_rate)
-    hi = rate * gm.tau + 0.0
-    lo = np.zeros_like(hi)
+    if bracket is None:
+        hi = rate * gm.tau + 0.0
+        lo = np.zeros_like(hi)
+    else:
+        lo, hi = (np.asarray(b, dtype=float).copy() for b in bracket)
+    scale = rate * gm.tau
     f_lo = shot_map(gm, path, seed, lo, n_rt, period)[1] - lo
     f_hi = shot_map(gm, path, seed, hi, n_rt, period)[1] - hi
     side = np.zeros(hi.shape, dtype=int)
@@ -50,7 +56,7 @@ def fixed_points(gm: GainModel, path: RoundTripPath, seed, n_rt, period, pump_ra
         denom = f_lo - f_hi
         x = np.where(denom != 0, (lo * (-f_hi) + hi * f_lo) / np.where(denom == 0, 1, denom), 0.5 * (lo + hi))
         fx = shot_map(gm, path, seed, x, n_rt, period)[1] - x
-        if np.all(np.abs(fx) <= _REL_TOL * np.maximum(hi, 1e-300)):
+        if np.all(np.abs(fx) <= _REL_TOL * np.maximum(scale, 1e-300)):
             break
         pos = fx > 0
         # Illinois: halve the retained end's value when the same side is kept twice
