@@ -20,9 +20,8 @@ from typing import Any, Optional
 
 from regentime import model as m
 from regentime.errors import MISSING, InputError, InputErrors
-from regentime.fileformat.schema import (
-    DRIVES, ELEMENT_KINDS, ELEMENTS, FORMAT_VERSION, TOP, FieldSpec, Section, known_keys)
-from regentime.units import DIMENSIONS, describe, parse_quantity
+from regentime.fileformat.schema import FORMAT_VERSION, FieldSpec, Section, known_keys
+from regentime.units import DIMENSIONS, parse_quantity
 
 MAX_BYTES = 1_000_000  # a cavity file is a few kB; refuse anything that is clearly not one
 MAX_DEPTH = 12  # deepest legitimate nesting is 4 (cleaner.cable.length; cavity[i].kind.key)
@@ -136,28 +135,60 @@ def decode(raw: bytes, source: Optional[str]) -> str:
 
 
 def read_yaml(text: str, source: Optional[str] = None):
-    """YAML text -> round-trip data (ruamel CommentedMap ...).  Raises InputError(s)."""
+    """YAML text -> round-trip data (ruamel CommentedMap ...).  Raises InputError(s).
+
+    One parse in the normal case; a duplicate key or a YAML error is parsed again node by
+    node (compose) to name the key path of every duplicate.
+    """
+    from ruamel.yaml.constructor import DuplicateKeyError
     from ruamel.yaml.error import YAMLError
 
-    yaml = _yaml()
     try:
-        root = yaml.compose(text)
+        data = _yaml().load(text)
+    except DuplicateKeyError:
+        data = None
+        _compose_check(text, source)
+        raise  # pragma: no cover - _compose_check raises for every duplicate
     except YAMLError as exc:
         raise _syntax_error(exc, source, text) from None
     except RecursionError:
         raise InputError("", _Shown("nesting too deep to read"),
                          "a cavity file (at most 4 levels deep)", source=source) from None
-    if root is not None:
-        problems = _check_nodes(root, source)
-        if problems:
-            raise InputErrors(problems)
+    _depth_check(data, source)
+    return data
+
+
+def _compose_check(text: str, source: Optional[str]) -> None:
+    from ruamel.yaml.error import YAMLError
+
     try:
-        return _yaml().load(text)
+        root = _yaml().compose(text)
     except YAMLError as exc:
         raise _syntax_error(exc, source, text) from None
-    except RecursionError:  # pragma: no cover - compose would have failed first
-        raise InputError("", _Shown("nesting too deep to read"), "a cavity file",
-                         source=source) from None
+    problems = _check_nodes(root, source) if root is not None else []
+    if problems:
+        raise InputErrors(problems)
+
+
+def _depth_check(data: Any, source: Optional[str]) -> None:
+    """Refuse values nested deeper than MAX_DEPTH (iteratively: no recursion limit)."""
+    seen: set[int] = set()
+    stack = [(data, "", 0, None)]
+    while stack:
+        node, path, depth, parent_line = stack.pop()
+        if not isinstance(node, (dict, list)) or id(node) in seen:
+            continue
+        seen.add(id(node))
+        line = _line(node) or parent_line
+        if depth > MAX_DEPTH:
+            raise InputErrors([InputError(
+                path, _Shown(f"a value nested deeper than {MAX_DEPTH} levels"),
+                "a cavity file (at most 4 levels deep)", line=line, source=source)])
+        items = node.items() if isinstance(node, dict) else enumerate(node)
+        for key, value in items:
+            sub = f"{path}[{key}]" if isinstance(node, list) else \
+                (f"{path}.{key}" if path else str(key))
+            stack.append((value, sub, depth + 1, line))
 
 
 # ---- checking --------------------------------------------------------------------------------
