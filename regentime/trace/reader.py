@@ -1,0 +1,566 @@
+"""Read an oscilloscope or acquisition-program trace: time column plus signal columns.
+
+Accepted layouts (detected from the first 64 KiB, never configured):
+
+* delimited text — comma, semicolon, tab or whitespace separated; any number of metadata or
+  header lines before the numbers; the last non-numeric line with as many fields as the data
+  names the columns; a line of units right after it (``(s),(V)``) is understood;
+* scientific notation, ``nan``/``inf`` spellings; decimal commas where the delimiter is not a
+  comma (``1,5e-9;0,25``);
+* the first column is time, in seconds unless the header (``Time (ms)``, ``t[ns]``, ``time_us``)
+  or a metadata line (``time unit: ns``) names another unit (s, ms, us/µs, ns, ps);
+* ``.npy`` (a 2-D array, time first; or a structured array with named fields) and ``.npz``
+  (named 1-D arrays, the time one called ``t``/``time``/``x`` with an optional unit suffix, or
+  one 2-D array; or ``dt`` [+ ``t0``] and signal arrays).
+
+Speed: the numeric block is parsed by numpy's C reader (:func:`numpy.loadtxt` on a file handle
+positioned at each chunk, or :func:`numpy.fromstring` after translating decimal commas) into
+one preallocated array; no Python object is made per sample.  Large files are split at line
+boundaries and parsed by forked worker processes writing into one shared array.
+
+Errors raise :class:`regentime.errors.InputError` naming the file and the line.
+"""
+
+from __future__ import annotations
+
+import math
+import mmap
+import os
+import re
+from dataclasses import dataclass, field
+from typing import Optional, Sequence
+
+import numpy as np
+
+from regentime.errors import InputError
+
+_SNIFF_BYTES = 1 << 16  # enough for any preamble a scope writes, and a few hundred data lines
+_CHUNK_BYTES = 1 << 23  # 8 MiB of text per parse job: bounded scratch memory, few jobs
+_PARALLEL_MIN_BYTES = 1 << 26  # below 64 MiB forking costs more than it saves
+_MIN_SAMPLES = 16
+
+TIME_UNITS = {"s": 1.0, "sec": 1.0, "secs": 1.0, "second": 1.0, "seconds": 1.0,
+              "ms": 1e-3, "us": 1e-6, "\u00b5s": 1e-6, "\u03bcs": 1e-6, "ns": 1e-9, "ps": 1e-12}
+
+_NUM = r"[+-]?(?:(?:\d+(?:[.]\d*)?|[.]\d+)(?:[eE][+-]?\d+)?|nan|NaN|NAN|inf|Inf|INF|infinity|Infinity)"
+_NUM_RE = re.compile(rf"^{_NUM}$")
+_NUM_COMMA_RE = re.compile(r"^[+-]?(?:\d+(?:,\d*)?|,\d+)(?:[eE][+-]?\d+)?$")
+_UNIT_IN_NAME = re.compile(
+    r"(?:[\(\[{]\s*(?P<a>[a-zA-Z\u00b5\u03bc]+)\s*[\)\]}]"  # Time (ms), t[ns], {us}
+    r"|[/_ -](?P<b>[a-zA-Z\u00b5\u03bc]+)\s*$"  # time/ns, time_us, "time ns"
+    r"|^(?P<c>[a-zA-Z\u00b5\u03bc]+)$)"  # a bare unit as the column name: "s"
+)
+_UNIT_META = re.compile(
+    r"(?:time|x|horizontal|h)[ _-]*units?\s*[:=,;\t ]\s*\(?(?P<u>[a-zA-Z\u00b5\u03bc]+)\)?",
+    re.IGNORECASE,
+)
+_TIME_NAMES = re.compile(r"^(?:t|time|x|times?)(?:[ _/-]?(?:s|ms|us|\u00b5s|\u03bcs|ns|ps))?$", re.I)
+_PD_NAMES = re.compile(r"photo|diode|\bpd\b|^pd", re.I)
+
+
+@dataclass
+class Trace:
+    """A trace as read: time in seconds and one chosen signal column (file units, normally V)."""
+
+    time: np.ndarray  # s, as written in the file (converted to seconds)
+    signal: np.ndarray  # the chosen channel
+    channel: str  # name of the chosen channel
+    channels: tuple  # names of every signal column
+    source: str  # file path
+    time_unit: str  # unit the file's time column was in
+    layout: str  # human description of what was detected
+    first_data_line: int = 0  # 1-based line number of the first data row (0 for npy/npz)
+    t0: float = 0.0  # s, fitted time of sample 0 (t = t0 + i·dt)
+    sample_interval: float = 0.0  # s, fitted dt
+    notes: list = field(default_factory=list)
+
+    @property
+    def n_samples(self) -> int:
+        return int(self.signal.size)
+
+
+# ----- public entry ------------------------------------------------------------------------
+
+
+def read_trace(path: str, channel: Optional[str] = None, workers: Optional[int] = None) -> Trace:
+    """Read ``path`` and return a :class:`Trace` with the chosen ``channel``.
+
+    ``channel``: a column name (case-insensitive) or a number counting the signal columns
+    from 1; default: a column whose name says photodiode, else the first signal column.
+    ``workers``: parallel parse processes for large text files (default: automatic).
+    """
+    if not os.path.exists(path):
+        raise InputError("SCOPE", path, "an existing trace file")
+    if os.path.isdir(path):
+        raise InputError("SCOPE", path, "a trace file, not a folder")
+    lower = path.lower()
+    if lower.endswith(".npy") or lower.endswith(".npz"):
+        names, units, columns, layout = _read_numpy(path)
+        first_line = 0
+    else:
+        names, units, columns, layout, first_line = _read_text(path, workers)
+    time_name, sig_names = names[0], list(names[1:])
+    scale, unit = _time_scale(time_name, units)
+    time = columns[0]
+    if scale != 1.0:
+        time = time * scale
+    idx = _pick_channel(sig_names, channel, path)
+    trace = Trace(time=time, signal=columns[1 + idx], channel=sig_names[idx], channels=tuple(sig_names),
+                  source=path, time_unit=unit, layout=layout, first_data_line=first_line)
+    _check_time(trace)
+    return trace
+
+
+# ----- text --------------------------------------------------------------------------------
+
+
+@dataclass
+class _Sniff:
+    delimiter: Optional[str]  # None: whitespace
+    decimal_comma: bool
+    ncols: int
+    data_line: int  # 0-based index of the first data line
+    data_offset: int  # byte offset of the first data line
+    names: list
+    units: dict  # "time_meta" -> unit from metadata, "row" -> list of units row
+    preamble: int  # number of lines before the data
+
+
+def _split(line: str, delim: Optional[str]) -> list:
+    if delim is None:
+        return line.split()
+    return [f.strip() for f in line.split(delim)]
+
+
+def _numeric(fields: Sequence[str], comma: bool) -> bool:
+    pat = _NUM_COMMA_RE if comma else _NUM_RE
+    return all(f and (pat.match(f) or _NUM_RE.match(f)) for f in fields)
+
+
+def _line_layout(line: str) -> Optional[tuple]:
+    """(delimiter, decimal_comma, nfields) if the line is all numbers, else None."""
+    text = line.strip()
+    if not text:
+        return None
+    for delim in ("\t", ";"):
+        if delim in text:
+            f = _split(text, delim)
+            if len(f) >= 2 and _numeric(f, comma=False):
+                return delim, False, len(f)
+            if len(f) >= 2 and _numeric(f, comma=True):
+                return delim, any("," in x for x in f), len(f)
+            return None
+    if "," in text:
+        f = _split(text, ",")
+        if len(f) >= 2 and _numeric(f, comma=False):
+            return ",", False, len(f)
+        f = text.split()
+        if len(f) >= 2 and _numeric(f, comma=True):
+            return None, True, len(f)
+        return None
+    f = text.split()
+    if len(f) >= 2 and _numeric(f, comma=False):
+        return None, False, len(f)
+    return None
+
+
+def _sniff(path: str, head: bytes) -> _Sniff:
+    text = head.decode("utf-8", errors="replace")
+    if text.startswith("\ufeff"):
+        text = text[1:]
+    lines = text.split("\n")
+    if len(head) >= _SNIFF_BYTES and len(lines) > 1:
+        lines = lines[:-1]  # the last one may be cut
+    if not any(l.strip() for l in lines):
+        raise InputError("", "(empty)", "a trace: a time column and at least one signal column",
+                         source=path)
+    layouts = [_line_layout(l) for l in lines]
+    start = None
+    for i, lay in enumerate(layouts):
+        if lay is None:
+            continue
+        nxt = [layouts[j] for j in range(i, min(len(lines), i + 6)) if lines[j].strip()]
+        if all(x == lay for x in nxt):
+            start = i
+            break
+    if start is None:
+        bad = next((i for i, l in enumerate(lines) if l.strip()), 0)
+        raise InputError("", lines[bad].strip()[:40] if lines else "",
+                         "numbers: a time column and at least one signal column, separated by "
+                         "commas, semicolons, tabs or spaces (no numeric rows found in the first "
+                         f"{len(lines)} lines)", line=bad + 1, source=path)
+    delim, comma, ncols = layouts[start]
+    names: list = []
+    units: dict = {}
+    for l in lines[:start]:
+        m = _UNIT_META.search(l)
+        if m:
+            units["time_meta"] = m.group("u")
+    pre = [l.strip() for l in lines[:start] if l.strip()]
+    hdr = [_split(l, delim) for l in pre]
+    hdr = [[x.strip().strip('"').strip("'") for x in h] for h in hdr]
+    matching = [h for h in hdr if len(h) == ncols]
+    if matching:
+        last = matching[-1]
+        if all(re.fullmatch(r"[\(\[]?\s*[a-zA-Z\u00b5\u03bc/%]*\s*[\)\]]?", x) for x in last) and len(matching) > 1:
+            units["row"] = [x.strip("()[] ") for x in last]
+            names = matching[-2]
+        else:
+            names = last
+    if not names or len(set(names)) != len(names) or any(not n for n in names):
+        names = ["time"] + [f"column {k}" for k in range(2, ncols + 1)]
+    offset = _byte_offset_of_line(head, start)
+    return _Sniff(delim, comma, ncols, start, offset, names, units, start)
+
+
+def _byte_offset_of_line(head: bytes, line: int) -> int:
+    pos = 0
+    for _ in range(line):
+        pos = head.index(b"\n", pos) + 1
+    return pos
+
+
+def _read_text(path: str, workers: Optional[int]):
+    size = os.path.getsize(path)
+    if size == 0:
+        raise InputError("", "(empty file)", "a trace: a time column and at least one signal column",
+                         source=path)
+    with open(path, "rb") as fh:
+        head = fh.read(_SNIFF_BYTES)
+    sn = _sniff(path, head)
+    jobs = _plan_chunks(path, sn.data_offset, size)
+    rows_total = sum(j[2] for j in jobs)
+    if rows_total < _MIN_SAMPLES:
+        raise InputError("", f"{rows_total} data rows", f"at least {_MIN_SAMPLES} samples", source=path)
+    nworkers = _workers(workers, size, len(jobs))
+    if nworkers > 1:
+        buf = mmap.mmap(-1, rows_total * sn.ncols * 8)
+        out = np.frombuffer(buf, dtype=np.float64).reshape(rows_total, sn.ncols)
+        _parse_parallel(path, sn, jobs, out, nworkers)
+    else:
+        out = np.empty((rows_total, sn.ncols))
+        for job in jobs:
+            err = _parse_job(path, sn, job, out)
+            if err:
+                raise _job_error(path, sn, err)
+    _check_finite(path, sn, out, jobs)
+    desc = {",": "comma", ";": "semicolon", "\t": "tab", None: "whitespace"}[sn.delimiter]
+    layout = f"{desc}-separated" + (", decimal comma" if sn.decimal_comma else "") + \
+        f", {sn.ncols} columns, {sn.preamble} line(s) before the data"
+    units = dict(sn.units)
+    if "row" in units:
+        units["time_row"] = units["row"][0]
+    return sn.names, units, [out[:, k] for k in range(sn.ncols)], layout, sn.data_line + 1
+
+
+def _plan_chunks(path: str, start: int, size: int) -> list:
+    """[(byte_start, byte_end, rows, first_line_number, first_row)] split at newlines.
+
+    Each chunk holds about ``_CHUNK_BYTES``; ``rows`` counts its non-blank lines (what the
+    parsers read), found with one vectorised pass over the newline positions.
+    """
+    jobs = []
+    with open(path, "rb") as fh:
+        line = fh.read(start).count(b"\n") + 1
+        pos, row = start, 0
+        while pos < size:
+            fh.seek(pos)
+            block = fh.read(_CHUNK_BYTES)
+            if not block:
+                break
+            if pos + len(block) < size:
+                cut = block.rfind(b"\n")
+                while cut < 0:  # one enormous line: read on to its end
+                    extra = fh.read(1 << 20)
+                    if not extra:
+                        break
+                    block += extra
+                    cut = block.rfind(b"\n")
+                if cut >= 0:
+                    block = block[: cut + 1]
+            rows, nl = _count_rows(block)
+            if rows > 0:
+                jobs.append((pos, pos + len(block), rows, line, row))
+            row += rows
+            line += nl
+            pos += len(block)
+    return jobs
+
+
+def _count_rows(block: bytes) -> tuple:
+    """(non-blank lines, newlines) in ``block``; a line of only \\r or spaces is blank."""
+    arr = np.frombuffer(block, dtype=np.uint8)
+    ends = np.flatnonzero(arr == 10)
+    nl = int(ends.size)
+    starts = np.concatenate(([0], ends + 1))
+    stops = np.concatenate((ends, [arr.size]))
+    ink = ~((arr == 32) | (arr == 13) | (arr == 9) | (arr == 10))
+    csum = np.concatenate(([0], np.cumsum(ink, dtype=np.int64)))
+    blank = (csum[stops] - csum[starts]) == 0
+    return int((~blank).sum()), nl
+
+
+def _workers(workers: Optional[int], size: int, njobs: int) -> int:
+    if workers is not None:
+        return max(1, min(int(workers), njobs))
+    if size < _PARALLEL_MIN_BYTES or not hasattr(os, "fork"):
+        return 1
+    import threading
+
+    if threading.active_count() > 1:  # forking a threaded process is unsafe (TUI workers)
+        return 1
+    return max(1, min(os.cpu_count() or 1, 8, njobs))
+
+
+def _parse_job(path: str, sn: _Sniff, job: tuple, out: np.ndarray):
+    """Parse one chunk into ``out``; return None or (line_hint, message) on failure."""
+    import warnings
+
+    start, end, rows, line0, row0 = job
+    try:
+        if sn.decimal_comma:
+            with open(path, "rb") as fh:
+                fh.seek(start)
+                block = fh.read(end - start)
+            table = bytes.maketrans(b",;\t", b".  ")
+            with warnings.catch_warnings():
+                warnings.simplefilter("error")
+                vals = np.fromstring(block.translate(table), dtype=np.float64, sep=" ")
+            if vals.size != rows * sn.ncols:
+                return (line0, None)
+            out[row0:row0 + rows] = vals.reshape(rows, sn.ncols)
+        else:
+            with open(path, "r", encoding="latin-1", newline=None) as fh:
+                fh.seek(start)
+                with warnings.catch_warnings():
+                    warnings.simplefilter("ignore")
+                    arr = np.loadtxt(fh, delimiter=sn.delimiter, comments=None, max_rows=rows,
+                                     ndmin=2, dtype=np.float64)
+            if arr.shape != (rows, sn.ncols):
+                return (line0, None)
+            out[row0:row0 + rows] = arr
+    except (ValueError, DeprecationWarning, UnicodeDecodeError) as exc:
+        return (line0, str(exc))
+    return None
+
+
+def _parse_parallel(path: str, sn: _Sniff, jobs: list, out: np.ndarray, nworkers: int) -> None:
+    import multiprocessing as mp
+
+    ctx = mp.get_context("fork")
+    groups = [jobs[k::nworkers] for k in range(nworkers)]
+    procs = []
+    for group in groups:
+        r, w = ctx.Pipe(duplex=False)
+        p = ctx.Process(target=_worker, args=(path, sn, group, out, w), daemon=True)
+        p.start()
+        w.close()
+        procs.append((p, r))
+    errors = []
+    for p, r in procs:
+        try:
+            msg = r.recv()
+        except EOFError:
+            msg = ("crash", None)
+        p.join()
+        if msg is not None:
+            errors.append(msg)
+    if errors:
+        errs = [e for e in errors if e[0] != "crash"]
+        if not errs:
+            raise RuntimeError("a trace parse worker stopped unexpectedly")
+        raise _job_error(path, sn, min(errs, key=lambda e: e[0]))
+
+
+def _worker(path, sn, group, out, conn) -> None:  # pragma: no cover - runs in a child
+    first = None
+    for job in group:
+        err = _parse_job(path, sn, job, out)
+        if err and (first is None or err[0] < first[0]):
+            first = err
+    conn.send(first)
+    conn.close()
+    os._exit(0)
+
+
+def _job_error(path: str, sn: _Sniff, err: tuple) -> InputError:
+    """Find the exact line that broke a chunk (error path only: a plain line scan)."""
+    line0 = err[0]
+    with open(path, "rb") as fh:
+        for lineno, raw in enumerate(fh, start=1):
+            if lineno < line0:
+                continue
+            text = raw.decode("utf-8", errors="replace").strip()
+            if not text:
+                continue
+            fields = _split(text, sn.delimiter)
+            if len(fields) != sn.ncols:
+                return InputError("", text[:60], f"{sn.ncols} fields like the rows above "
+                                  f"(found {len(fields)})", line=lineno, source=path)
+            for k, f in enumerate(fields):
+                ok = _NUM_RE.match(f) or (sn.decimal_comma and _NUM_COMMA_RE.match(f))
+                if not ok:
+                    return InputError(f"column {k + 1}", f, "a number", line=lineno, source=path)
+    return InputError("", err[1] or "unreadable data", "numeric rows", line=line0, source=path)
+
+
+def _check_finite(path: str, sn: _Sniff, out: np.ndarray, jobs: list) -> None:
+    bad = ~np.isfinite(out)
+    if not bad.any():
+        return
+    row = int(np.flatnonzero(bad.any(axis=1))[0])
+    col = int(np.flatnonzero(bad[row])[0])
+    line = _line_of_row(path, jobs, row)
+    raise InputError(f"column {col + 1}", float(out[row, col]), "a finite number", line=line, source=path)
+
+
+def _line_of_row(path: str, jobs: list, row: int) -> int:
+    """Line number of data row ``row`` (error path: scans the one chunk that holds it)."""
+    for job in jobs:
+        r0 = job[4]
+        if r0 <= row < r0 + job[2]:
+            want = row - r0
+            with open(path, "rb") as fh:
+                fh.seek(job[0])
+                block = fh.read(job[1] - job[0])
+            seen = -1
+            for k, raw in enumerate(block.split(b"\n")):
+                if raw.strip():
+                    seen += 1
+                    if seen == want:
+                        return job[3] + k
+    return 0
+
+
+# ----- numpy files -------------------------------------------------------------------------
+
+
+def _read_numpy(path: str):
+    try:
+        if path.lower().endswith(".npy"):
+            arr = np.load(path, mmap_mode="r", allow_pickle=False)
+            return _columns_from_array(path, arr, "npy")
+        with np.load(path, allow_pickle=False) as z:
+            keys = list(z.keys())
+            if not keys:
+                raise InputError("", "(empty .npz)", "named arrays: time and signals", source=path)
+            arrays = {k: np.asarray(z[k]) for k in keys}
+    except InputError:
+        raise
+    except Exception as exc:  # numpy raises several types for a damaged or foreign file
+        raise InputError("", type(exc).__name__, f"a readable numpy file ({exc})", source=path) from None
+    if len(arrays) == 1:
+        (k, arr), = arrays.items()
+        return _columns_from_array(path, arr, f"npz array '{k}'")
+    dt_key = next((k for k in arrays if k.lower() in ("dt", "sample_interval", "dt_s")), None)
+    vectors = {k: v for k, v in arrays.items() if v.ndim == 1 and v.size > 1}
+    if not vectors:
+        raise InputError("", ", ".join(keys), "1-D arrays of samples (time and signals)", source=path)
+    n = max(v.size for v in vectors.values())
+    same = {k: v for k, v in vectors.items() if v.size == n}
+    tkey = next((k for k in same if _TIME_NAMES.match(k)), None)
+    if tkey is None and dt_key is not None:
+        dt = float(np.asarray(arrays[dt_key]).ravel()[0])
+        t0k = next((k for k in arrays if k.lower() in ("t0", "t0_s", "start")), None)
+        t0 = float(np.asarray(arrays[t0k]).ravel()[0]) if t0k else 0.0
+        names = ["time"] + list(same)
+        cols = [t0 + dt * np.arange(n)] + [np.asarray(v, dtype=float) for v in same.values()]
+        return names, {}, cols, f"npz with {dt_key} and {len(same)} signal array(s)"
+    if tkey is None:
+        tkey = next(iter(same))
+    names = [tkey] + [k for k in same if k != tkey]
+    if len(names) < 2:
+        raise InputError("", ", ".join(keys), "a time array and at least one signal array of the same length",
+                         source=path)
+    cols = [np.asarray(same[k], dtype=float) for k in names]
+    return names, {}, cols, f"npz, {len(names)} arrays of {n} samples"
+
+
+def _columns_from_array(path: str, arr: np.ndarray, what: str):
+    if arr.dtype.names:
+        names = list(arr.dtype.names)
+        if len(names) < 2:
+            raise InputError("", names, "a time field and at least one signal field", source=path)
+        return names, {}, [np.asarray(arr[n], dtype=float) for n in names], f"{what}, structured"
+    if arr.ndim != 2 or min(arr.shape) < 2:
+        raise InputError("", f"array of shape {arr.shape}", "a 2-D array: time column then signal columns",
+                         source=path)
+    if arr.shape[0] < arr.shape[1] and arr.shape[0] <= 16:
+        arr = arr.T
+    arr = np.asarray(arr, dtype=float)
+    names = ["time"] + [f"column {k}" for k in range(2, arr.shape[1] + 1)]
+    return names, {}, [arr[:, k] for k in range(arr.shape[1])], f"{what}, {arr.shape[1]} columns"
+
+
+# ----- checks and choices ------------------------------------------------------------------
+
+
+def _time_scale(name: str, units: dict) -> tuple:
+    cand = []
+    if units.get("time_row"):
+        cand.append(units["time_row"])
+    m = _UNIT_IN_NAME.search(name.strip())
+    if m:
+        cand.append(m.group("a") or m.group("b") or m.group("c"))
+    if units.get("time_meta"):
+        cand.append(units["time_meta"])
+    for c in cand:
+        key = c.strip()
+        if key in TIME_UNITS:
+            return TIME_UNITS[key], key
+        if key.lower() in TIME_UNITS:
+            return TIME_UNITS[key.lower()], key.lower()
+    return 1.0, "s"
+
+
+def _pick_channel(names: list, channel: Optional[str], path: str) -> int:
+    if channel is None or str(channel).strip() == "":
+        for k, n in enumerate(names):
+            if _PD_NAMES.search(n):
+                return k
+        return 0
+    want = str(channel).strip()
+    for k, n in enumerate(names):
+        if n.lower() == want.lower():
+            return k
+    if re.fullmatch(r"\d+", want):
+        k = int(want)
+        if 1 <= k <= len(names):
+            return k - 1
+    listing = ", ".join(f"{k + 1}={n}" for k, n in enumerate(names))
+    raise InputError("--channel", want, f"a signal column name or number ({listing})", source=path)
+
+
+def _check_time(trace: Trace) -> None:
+    t = np.asarray(trace.time, dtype=float)
+    n = t.size
+    if n < _MIN_SAMPLES:
+        raise InputError("", f"{n} samples", f"at least {_MIN_SAMPLES} samples", source=trace.source)
+    d = np.diff(t)
+    bad = np.flatnonzero(~(d > 0))
+    if bad.size:
+        row = int(bad[0]) + 1
+        line = trace.first_data_line + row if trace.first_data_line else None
+        raise InputError("time", float(t[row]), "a time larger than the row before (time must increase)",
+                         line=_text_line(trace, row), source=trace.source)
+    # t = t0 + i·dt by least squares: robust to time values printed with few digits
+    i = np.arange(n, dtype=float)
+    im = (n - 1) / 2.0
+    tm = float(t.mean())
+    dt = float(np.dot(i - im, t - tm) / np.dot(i - im, i - im))
+    t0 = tm - dt * im
+    dev = t - (t0 + dt * i)
+    worst = int(np.argmax(np.abs(dev)))
+    if abs(dev[worst]) > 0.5 * dt:
+        raise InputError("time", float(t[worst]), "evenly spaced samples (this one is "
+                         f"{dev[worst] / dt:+.2f} sample intervals off the straight line)",
+                         line=_text_line(trace, worst), source=trace.source)
+    trace.t0, trace.sample_interval = t0, dt
+
+
+def _text_line(trace: Trace, row: int) -> Optional[int]:
+    if not trace.first_data_line:
+        return None
+    if trace.layout.startswith("npz") or trace.layout.startswith("npy"):
+        return None
+    return trace.first_data_line + row  # exact unless blank lines sit inside the data
