@@ -1,0 +1,607 @@
+"""The terminal planner: edit a cavity file and watch the plan follow.
+
+The app holds a :class:`~regentime.fileformat.document.CavityDocument` (the file's text, kept
+with its comments) and the last valid plan.  Every accepted edit starts a planning run in a
+thread worker (a newer edit cancels the older run); the run calls the same functions as
+``regentime plan`` (:func:`load_cavity_text`, :func:`make_plan`) and hands the plan back to
+the UI thread.  Refused input is marked with its reason and the last valid plan stays.
+"""
+
+from __future__ import annotations
+
+import os
+import time
+from typing import Any, Iterable, Optional
+
+from textual import work
+from textual.app import App, ComposeResult, SystemCommand
+from textual.binding import Binding
+from textual.containers import Horizontal, VerticalScroll
+from textual.screen import Screen
+from textual.widgets import Footer, Header, Static
+from textual.worker import get_current_worker
+
+from regentime.errors import InputError, InputErrors, PlanError
+from regentime.fileformat.document import CavityDocument
+from regentime.planning.plan import CAUTION, CAUTION_SHORT
+from regentime.tui import view
+from regentime.tui.buildup_plot import BuildupPlot
+from regentime.tui.dialogs import ConfirmScreen, KindScreen, PathScreen
+from regentime.tui.editor import ParameterEditor, shown
+from regentime.tui.element_screen import ElementScreen
+from regentime.tui.elements import ElementList
+from regentime.tui.field_row import FieldRow
+from regentime.tui.help_screen import HelpScreen
+from regentime.tui.load_error_screen import LoadErrorScreen
+from regentime.tui.panels import ChecksPanel, ContrastPanel, TimingPanel
+
+DEMO_TITLE = "built-in demo (invented scenario)"
+
+# (key, action, footer label, description, key shown, in footer): footer, help, command palette
+KEYS = [
+    ("f1", "help", "help", "Help: every key and what each region shows", "F1", True),
+    ("left_square_bracket", "switch_out('earlier')", "earlier",
+     "Switch out one round trip earlier", "[", True),
+    ("right_square_bracket", "switch_out('later')", "later",
+     "Switch out one round trip later", "]", True),
+    ("p", "switch_out('peak')", "peak", "Switch out at the round trip of peak output", "p", True),
+    ("s", "switch_out('steady')", "steadiest",
+     "Switch out at the steadiest round trip (least sensitive to pump and seed)", "s", True),
+    ("w", "write_dump", "write N", "Write the chosen switch-out round trip to the file (dump:)",
+     "w", True),
+    ("l", "toggle_log", "log/lin", "Log / linear energy axis of the build-up plot", "l", True),
+    ("v", "toggle_sensitivity", "sensitivity",
+     "Show / hide the output's sensitivity to pump and seed", "v", True),
+    ("n", "toggle_notes", "notes", "Show / hide the notes under the generator table's rows",
+     "n", False),
+    ("ctrl+s", "save", "save", "Save the cavity file (comments and key order kept)", "^s", True),
+    ("f2", "save_as", "save as", "Save the cavity file under another name", "F2", False),
+    ("x", "export", "export", "Export the table (.md/.csv/.json) or the build-up plot (.png)",
+     "x", True),
+    ("r", "reload", "reload", "Reload the file from disk", "r", False),
+    ("e", "toggle_editor", "editor", "Show / hide the parameter editor", "e", False),
+    ("ctrl+q", "quit", "quit", "Quit (asks first when there are unsaved changes)", "^q", True),
+]
+OTHER_KEYS = [
+    ("in a value box", [("type", "the value with its unit: '9 mJ', '250 mm', '99.8 %'"),
+                        ("escape", "leave the box (back to the build-up plot)"),
+                        ("tab / shift+tab", "next / previous box or region")]),
+    ("build-up plot", [("← / →", "switch out one round trip earlier / later")]),
+    ("element list", [("+ or insert", "add an element after the highlighted one"),
+                      ("− or delete", "remove the highlighted element"),
+                      ("shift+↑ / shift+↓", "move it up / down"),
+                      ("enter", "edit its values")]),
+    ("anywhere", [("?", "help (when no value box has the cursor)"),
+                  ("ctrl+p", "command palette: every action by name")]),
+]
+
+
+class PlannerApp(App[int]):
+    """Plan a regen interactively.  Give it a path (opened here) or a document; neither: demo."""
+
+    CSS_PATH = "app.tcss"
+    TITLE = "regentime"
+    BINDINGS = [Binding(k, a, label, key_display=kd, show=s, tooltip=d)
+                for k, a, label, d, kd, s in KEYS] + [
+        Binding("question_mark", "help", "Help", show=False),
+        Binding("escape", "focus_plot", "Back to the plot", show=False),
+    ]
+
+    def __init__(self, path: Optional[str] = None, document: Optional[CavityDocument] = None,
+                 watch_interval: float = 1.0) -> None:
+        super().__init__()
+        self.path = path
+        self.doc: Optional[CavityDocument] = document
+        self.plan = None
+        self.override: Any = None  # switch-out chosen here: int, "auto", "steady" or None
+        self.generation = 0
+        self.saved_text = ""
+        self.disk_stamp: Optional[tuple] = None
+        self.cross_marked: dict[str, str] = {}  # rows marked by whole-file checks
+        self.input_problems: list[str] = []
+        self.last_plan_seconds = 0.0
+        self.watch_interval = watch_interval
+        self._asking_disk = False
+
+    # ---- layout ----------------------------------------------------------------------------
+    def compose(self) -> ComposeResult:
+        yield Header(icon="≋")
+        yield Static("opening…", id="summary")
+        with Horizontal(id="main"):
+            yield ParameterEditor(id="editor")
+            with VerticalScroll(id="results"):
+                yield BuildupPlot(id="plot")
+                yield TimingPanel(id="timing")
+                with Horizontal(id="lower"):
+                    yield ContrastPanel(id="contrast")
+                    yield ChecksPanel(id="checks")
+        yield Static(f"⚠ {CAUTION_SHORT}", id="caution")
+        yield Footer()
+
+    async def on_mount(self) -> None:
+        self.query_one("#plot").border_title = "build-up"
+        self.query_one("#timing").border_title = "switching and delay generator"
+        self.query_one("#contrast").border_title = "contrast"
+        self.query_one("#checks").border_title = "checks"
+        self.query_one("#editor").border_title = "parameters"
+        self._layout_classes()
+        if self.doc is None and self.path is not None:
+            try:
+                self.doc = CavityDocument.load(self.path)
+            except (InputError, InputErrors) as exc:
+                self.push_screen(LoadErrorScreen(self.path, _lines(exc)), self._after_load_error)
+                return
+            try:
+                self.doc.to_cavity()
+            except (InputError, InputErrors) as exc:  # YAML fine, values wrong: may fix here
+                self.push_screen(LoadErrorScreen(self.path, _lines(exc), can_edit=True),
+                                 self._after_load_error)
+                return
+        if self.doc is None:
+            await self.open_demo()
+        else:
+            await self.open_document(self.doc)
+        if self.watch_interval > 0:
+            self.set_interval(self.watch_interval, self._check_disk)
+
+    async def open_demo(self) -> None:
+        from regentime.fileformat.loader import demo_text
+
+        await self.open_document(CavityDocument.from_text(demo_text(), None))
+
+    async def open_document(self, doc: CavityDocument) -> None:
+        self.doc = doc
+        self.path = doc.source
+        self.saved_text = doc.text()
+        self.disk_stamp = _stamp(doc.source)
+        self.override = None
+        self.cross_marked.clear()
+        await self.query_one(ParameterEditor).load(doc)
+        self._update_title()
+        self.query_one(BuildupPlot).focus()
+        self.request_plan()
+
+    def _after_load_error(self, choice: Optional[str]) -> None:
+        if choice == "demo":
+            self.call_later(self.open_demo)
+        elif choice == "edit" and self.doc is not None:
+            self.call_later(self.open_document, self.doc)
+        else:
+            self.exit(2)
+
+    def on_resize(self) -> None:
+        self._layout_classes()
+
+    def _layout_classes(self) -> None:
+        w, h = self.size
+        self.screen.set_class(w < 110, "narrow")
+        self.screen.set_class(h < 32, "short")
+        self.screen.set_class(h >= 46, "tall")
+
+    # ---- title and summary -----------------------------------------------------------------
+    @property
+    def modified(self) -> bool:
+        return self.doc is not None and self.doc.text() != self.saved_text
+
+    def _update_title(self) -> None:
+        name = os.path.basename(self.doc.source) if self.doc and self.doc.source else DEMO_TITLE
+        self.title = "regentime"
+        self.sub_title = name + ("  ● modified (ctrl+s saves)" if self.modified else "")
+
+    def _update_summary(self) -> None:
+        bar = self.query_one("#summary", Static)
+        if self.plan is None:
+            bar.update("no valid plan yet: fix the values marked in red")
+            return
+        text = view.summary_line(self.plan, self.override)
+        if self.input_problems:
+            text = "⚠ input refused, showing the last valid plan  |  " + text
+        bar.set_class(bool(self.input_problems), "stale")
+        bar.update(text)
+
+    # ---- planning --------------------------------------------------------------------------
+    def request_plan(self) -> None:
+        """Plan the document as it is now (a newer request cancels this one)."""
+        if self.doc is None:
+            return
+        self.generation += 1
+        self._plan_worker(self.doc.text(), self.doc.source, self.override, self.generation,
+                          time.perf_counter())
+
+    @work(thread=True, exclusive=True, group="plan", exit_on_error=False)
+    def _plan_worker(self, text: str, source: Optional[str], override: Any, gen: int,
+                     started: float) -> None:
+        from regentime.fileformat.loader import load_cavity_text
+        from regentime.planning.plan import make_plan
+
+        worker = get_current_worker()
+        try:
+            plan = make_plan(load_cavity_text(text, source), dump=override)
+        except (InputError, InputErrors, PlanError) as exc:
+            if not worker.is_cancelled:
+                self.call_from_thread(self._plan_failed, gen, exc)
+            return
+        except Exception as exc:  # noqa: BLE001 - a bug in planning: shown, never a crash
+            if not worker.is_cancelled:
+                self.call_from_thread(self._plan_crashed, gen, exc)
+            return
+        if not worker.is_cancelled:
+            self.call_from_thread(self._plan_ready, gen, plan, started)
+
+    def _plan_ready(self, gen: int, plan, started: float) -> None:
+        if gen != self.generation:
+            return
+        self.plan = plan
+        self.input_problems = []
+        self._clear_cross_marks()
+        self.query_one(BuildupPlot).set_plan(plan)
+        self.query_one(TimingPanel).show(plan)
+        self.query_one(ContrastPanel).show(plan)
+        self.query_one(ChecksPanel).show(plan)
+        self._update_summary()
+        self.last_plan_seconds = time.perf_counter() - started
+
+    def _plan_failed(self, gen: int, exc: Exception) -> None:
+        if gen != self.generation:
+            return
+        errors = exc.errors if isinstance(exc, InputErrors) else [exc]
+        self.input_problems = [e.one_line() if isinstance(e, InputError) else str(e)
+                               for e in errors]
+        self._clear_cross_marks()
+        for err in errors:
+            path = getattr(err, "path", "")
+            for row in self._rows(path):
+                if row.reason is None:
+                    row.set_error(_reason(err))
+                    self.cross_marked[path] = _reason(err)
+        if isinstance(exc, PlanError):
+            self.input_problems = [f"cannot plan: {exc}"]
+        extra = [("error", f"✗ {p}") for p in self.input_problems]
+        if self.plan is not None:
+            self.query_one(ChecksPanel).show(self.plan, extra)
+        else:
+            self.query_one(ChecksPanel).update("\n".join(t for _, t in extra))
+        self._update_summary()
+
+    def _plan_crashed(self, gen: int, exc: Exception) -> None:
+        if gen != self.generation:
+            return
+        self.notify(f"internal error while planning (a bug in regentime, please report it with "
+                    f"the cavity file): {type(exc).__name__}: {exc}", severity="error",
+                    timeout=12)
+        self._plan_failed(gen, PlanError(f"internal error: {type(exc).__name__}: {exc}"))
+
+    def _rows(self, path: str) -> list[FieldRow]:
+        rows = [r for r in self.screen.query(FieldRow) if r.path == path]
+        if self.screen is not self.screen_stack[0]:
+            rows += [r for r in self.screen_stack[0].query(FieldRow) if r.path == path]
+        return rows
+
+    def _clear_cross_marks(self) -> None:
+        for path, reason in list(self.cross_marked.items()):
+            for row in self._rows(path):
+                if row.reason == reason:
+                    row.set_error(None)
+        self.cross_marked.clear()
+
+    # ---- editing ---------------------------------------------------------------------------
+    def on_field_row_edited(self, event: FieldRow.Edited) -> None:
+        event.stop()
+        if self.doc is None:
+            return
+        text = event.text.strip()
+        current = self.doc.get(event.path)
+        if not text:
+            event.row.set_error(None if current is None else
+                                "empty: type a value (to remove the key, edit the file)")
+            return
+        if shown(current) == text and event.row.reason is None:
+            return
+        try:
+            self.doc.set(event.path, text)
+        except InputError as exc:
+            event.row.set_error(_reason(exc))
+            return
+        event.row.set_error(None)
+        if event.path == "dump":
+            self.override = None
+        self._after_edit(elements=event.path.startswith("cavity"))
+
+    def _after_edit(self, elements: bool = False) -> None:
+        self._update_title()
+        if elements:
+            self.call_later(self.query_one(ElementList).load, self.doc)
+        self.request_plan()
+
+    async def on_element_list_action(self, event: ElementList.Action) -> None:
+        event.stop()
+        if self.doc is None:
+            return
+        i = event.index
+        try:
+            if event.action == "add":
+                where = f"after element {i}" if i >= 0 else "at the start"
+                self.push_screen(KindScreen(_kinds(), where), lambda k: self._add(k, i + 1))
+                return
+            if i < 0:
+                return
+            if event.action == "edit":
+                self.push_screen(ElementScreen(self.doc, i), self._after_element_screen)
+                return
+            if event.action == "remove":
+                self.doc.remove_element(i)
+                keep = i
+            elif event.action in ("up", "down"):
+                self.doc.move_element(i, -1 if event.action == "up" else 1)
+                keep = i + (-1 if event.action == "up" else 1)
+            else:
+                return
+        except InputError as exc:
+            self.notify(exc.one_line(), severity="error")
+            return
+        await self.query_one(ElementList).load(self.doc, keep=keep)
+        self._update_title()
+        self.request_plan()
+
+    def _add(self, kind: Optional[str], index: int) -> None:
+        if kind is None or self.doc is None:
+            return
+        try:
+            self.doc.insert_element(index, kind)
+        except InputError as exc:
+            self.notify(exc.one_line(), severity="error")
+            return
+        self._update_title()
+        self.call_later(self.query_one(ElementList).load, self.doc, index)
+        self.request_plan()
+        self.push_screen(ElementScreen(self.doc, index), self._after_element_screen)
+
+    def _after_element_screen(self, _: Any = None) -> None:
+        self.call_later(self.query_one(ElementList).load, self.doc)
+        self.query_one(ElementList).focus()
+
+    # ---- the switch-out round trip ----------------------------------------------------------
+    def on_buildup_plot_nudge(self, event: BuildupPlot.Nudge) -> None:
+        self.action_switch_out("earlier" if event.delta < 0 else "later")
+
+    def action_switch_out(self, how: str) -> None:
+        if self.plan is None:
+            self.notify("no valid plan yet", severity="warning")
+            return
+        b = self.plan.buildup
+        top = len(b.output) - 1
+        now = self.override if isinstance(self.override, int) else b.dump_round_trip
+        if how == "earlier":
+            choice: Any = max(1, now - 1)
+        elif how == "later":
+            choice = min(top, now + 1)
+        elif how == "peak":
+            choice = "auto"
+        else:
+            choice = "steady"
+        file_value = self.doc.get("dump", "auto") if self.doc else "auto"
+        self.override = None if str(file_value) == str(choice) else choice
+        self.request_plan()
+
+    def action_write_dump(self) -> None:
+        if self.doc is None or self.plan is None:
+            return
+        value = self.override if self.override is not None else self.doc.get("dump")
+        if value is None:
+            self.notify("the file already uses the default (auto: peak output)")
+            return
+        try:
+            self.doc.set("dump", value)
+        except InputError as exc:
+            self.notify(exc.one_line(), severity="error")
+            return
+        self.override = None
+        row = self.query_one(ParameterEditor).row("dump")
+        if row is not None:
+            row.set_value(shown(self.doc.get("dump")))
+        self.notify(f"dump: {value} written to the document (ctrl+s saves the file)")
+        self._after_edit()
+
+    # ---- view toggles ------------------------------------------------------------------------
+    def action_toggle_log(self) -> None:
+        plot = self.query_one(BuildupPlot)
+        plot.log_scale = not plot.log_scale
+
+    def action_toggle_sensitivity(self) -> None:
+        plot = self.query_one(BuildupPlot)
+        plot.show_sensitivity = not plot.show_sensitivity
+
+    def action_toggle_notes(self) -> None:
+        panel = self.query_one(TimingPanel)
+        panel.notes = not panel.notes
+        if self.plan is not None:
+            panel.show(self.plan)
+
+    def action_toggle_editor(self) -> None:
+        editor = self.query_one(ParameterEditor)
+        editor.display = not editor.display
+        if not editor.display:
+            self.query_one(BuildupPlot).focus()
+
+    def action_focus_plot(self) -> None:
+        self.query_one(BuildupPlot).focus()
+
+    def action_help(self) -> None:
+        keys = [("main keys", [(kd, d) for _, _, _, d, kd, _ in KEYS])]
+        self.push_screen(HelpScreen(keys + OTHER_KEYS, CAUTION))
+
+    def get_system_commands(self, screen: Screen) -> Iterable[SystemCommand]:
+        yield from super().get_system_commands(screen)
+        for _, action, _, description, key, _ in KEYS:
+            yield SystemCommand(description, f"key {key}",
+                                lambda a=action: self.run_action(a))
+
+    # ---- files -------------------------------------------------------------------------------
+    def action_save(self) -> None:
+        if self.doc is None:
+            return
+        if not self.doc.source:
+            self.action_save_as()
+            return
+        self._save(None)
+
+    def action_save_as(self) -> None:
+        if self.doc is None:
+            return
+        start = self.doc.source or "my-regen.yaml"
+        self.push_screen(PathScreen("Save the cavity file as:", start,
+                                    "YAML; the file's comments and key order are kept."),
+                         self._save_as_chosen)
+
+    def _save_as_chosen(self, path: Optional[str]) -> None:
+        if not path:
+            return
+        if os.path.exists(path) and os.path.realpath(path) != os.path.realpath(self.doc.source or ""):
+            self.push_screen(ConfirmScreen(f"{path} exists. Replace it?",
+                                           [("yes", "Replace"), ("no", "Cancel")]),
+                             lambda a: self._save(path) if a == "yes" else None)
+            return
+        self._save(path)
+
+    def _save(self, path: Optional[str], then_quit: bool = False) -> bool:
+        try:
+            written = self.doc.save(path)
+        except (InputError, OSError) as exc:
+            msg = exc.one_line() if isinstance(exc, InputError) else str(exc)
+            self.notify(f"not saved: {msg}", severity="error", timeout=10)
+            return False
+        self.saved_text = self.doc.text()
+        self.disk_stamp = _stamp(written)
+        self.path = written
+        self._update_title()
+        note = "" if not self.input_problems else " (note: the file has problems, see checks)"
+        self.notify(f"saved {written}{note}", severity="warning" if note else "information")
+        if then_quit:
+            self.exit(0)
+        return True
+
+    def action_export(self) -> None:
+        if self.plan is None:
+            self.notify("no valid plan to export yet", severity="warning")
+            return
+        from regentime.tui.exporting import FORMATS, default_name
+
+        hint = "The ending picks the format: " + ", ".join(f"{e} {w}" for e, w in FORMATS.items())
+        self.push_screen(PathScreen("Export to:", default_name(self.doc.source), hint),
+                         self._export_chosen)
+
+    def _export_chosen(self, path: Optional[str]) -> None:
+        if path and self.plan is not None:
+            self._export_worker(self.plan, path)
+
+    @work(thread=True, group="export", exit_on_error=False)
+    def _export_worker(self, plan, path: str) -> None:
+        from regentime.tui.exporting import export
+
+        try:
+            what = export(plan, path)
+        except InputError as exc:
+            self.call_from_thread(self.notify, f"not exported: {exc.one_line()}", severity="error")
+        except Exception as exc:  # noqa: BLE001 - shown to the user, never a crash
+            self.call_from_thread(self.notify, f"not exported: {type(exc).__name__}: {exc}",
+                                  severity="error")
+        else:
+            self.call_from_thread(self.notify, f"{what} written to {path}")
+
+    def action_reload(self) -> None:
+        if self.doc is None or not self.doc.source:
+            self.notify("the built-in demo has no file to reload", severity="warning")
+            return
+        if self.modified:
+            self.push_screen(ConfirmScreen("Reload the file from disk and drop your unsaved edits?",
+                                           [("reload", "Reload"), ("keep", "Keep my edits")]),
+                             lambda a: self.call_later(self._reload) if a == "reload" else None)
+            return
+        self.call_later(self._reload)
+
+    async def _reload(self) -> None:
+        try:
+            doc = CavityDocument.load(self.doc.source)
+        except (InputError, InputErrors) as exc:
+            self.disk_stamp = _stamp(self.doc.source)
+            self.notify("not reloaded: " + "; ".join(_lines(exc)), severity="error", timeout=10)
+            return
+        await self.open_document(doc)
+        self.notify(f"reloaded {doc.source}")
+
+    def _check_disk(self) -> None:
+        if self.doc is None or not self.doc.source or self._asking_disk:
+            return
+        stamp = _stamp(self.doc.source)
+        if stamp is None or stamp == self.disk_stamp:
+            return
+        self.disk_stamp = stamp
+        try:
+            with open(self.doc.source, encoding="utf-8") as fh:
+                on_disk = fh.read()
+        except (OSError, UnicodeDecodeError):
+            return
+        if on_disk in (self.saved_text, self.doc.text()):
+            return
+        if not self.modified:
+            self.call_later(self._reload)
+            return
+        self._asking_disk = True
+
+        def answer(a: Optional[str]) -> None:
+            self._asking_disk = False
+            if a == "reload":
+                self.call_later(self._reload)
+
+        self.push_screen(ConfirmScreen("The file changed on disk. Reload it and drop your unsaved "
+                                       "edits?", [("reload", "Reload"), ("keep", "Keep my edits")]),
+                         answer)
+
+    async def action_quit(self) -> None:
+        if not self.modified:
+            self.exit(0)
+            return
+        name = os.path.basename(self.doc.source) if self.doc.source else "the demo"
+
+        def answer(a: Optional[str]) -> None:
+            if a == "save":
+                if self.doc.source:
+                    self._save(None, then_quit=True)
+                else:
+                    self.action_save_as()
+            elif a == "discard":
+                self.exit(0)
+
+        self.push_screen(ConfirmScreen(f"{name} has unsaved changes. Save them before quitting?",
+                                       [("save", "Save and quit"), ("discard", "Quit without saving"),
+                                        ("cancel", "Cancel")]), answer)
+
+
+def _kinds() -> list[str]:
+    from regentime.fileformat.schema import ELEMENT_KINDS
+
+    return list(ELEMENT_KINDS)
+
+
+def _reason(exc: Exception) -> str:
+    if isinstance(exc, InputError):
+        text = exc.one_line()
+        prefix = f"{exc.path}: "
+        return text.split(prefix, 1)[1] if prefix in text and exc.path else text
+    return str(exc)
+
+
+def _lines(exc: Exception) -> list[str]:
+    if isinstance(exc, InputErrors):
+        return [e.one_line() for e in exc.errors]
+    return [exc.one_line() if isinstance(exc, InputError) else str(exc)]
+
+
+def _stamp(path: Optional[str]) -> Optional[tuple]:
+    if not path:
+        return None
+    try:
+        st = os.stat(path)
+    except OSError:
+        return None
+    return (st.st_mtime_ns, st.st_size)

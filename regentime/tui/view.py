@@ -1,0 +1,209 @@
+"""Plan -> text for the TUI's regions.  Formatting only: every number comes from the plan.
+
+Kept free of Textual so the same strings can be checked in plain tests.  Stages that are not
+written yet (``plan.switching``, ``plan.timing``, ``plan.contrast`` are None) are shown as
+"not available yet", never as made-up numbers.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+from typing import Any, Optional
+
+from regentime.reports.tables import eng
+
+NOT_YET = "not available yet (this planning stage is not in this build)"
+
+
+def _f(x: Any) -> Optional[float]:
+    try:
+        v = float(x)
+    except (TypeError, ValueError):
+        return None
+    return v if math.isfinite(v) else None
+
+
+def round_trip_text(plan) -> str:
+    """Round-trip time to 0.1 ps, as engineers compare it with a photodiode: '11.2615 ns'."""
+    return f"{plan.round_trip_time * 1e9:.4f} ns"
+
+
+def summary_line(plan, override: Any = None) -> str:
+    """One line for the top bar: round trip, switch-out round trip, output energy."""
+    b = plan.buildup
+    rule = {"auto": "peak", "steady": "steadiest", "given": "given"}.get(b.rule, b.rule)
+    rule += ", chosen here: w writes it" if override is not None else ", file's rule"
+    parts = [
+        f"round trip {round_trip_text(plan)}",
+        f"path {eng(plan.optics.optical_path, 'm', 5)}",
+        f"switch-out after {b.dump_round_trip} ({rule})",
+        f"output {eng(b.output_energy, 'J', 4)}, {b.extraction_efficiency * 100:.1f} % extracted",
+    ]
+    if b.continuous and b.period != 1:
+        parts.append("period " + ("irregular" if b.period == 0 else str(b.period)))
+    return " │ ".join(parts)
+
+
+def switching_lines(plan) -> list[str]:
+    """Switch-on/off windows, edges, gate width and jitter margin (ns and sigmas)."""
+    s = plan.switching
+    if s is None:
+        return [f"Pockels-cell windows: {NOT_YET}"]
+    lines = []
+    scheme = getattr(s, "scheme", None) or getattr(plan.cavity.switch, "scheme", "")
+    seed_i = getattr(s, "seed_pulse_index", None)
+    head = f"scheme {scheme}"
+    if seed_i is not None:
+        head += f"   seed pulse #{seed_i} trapped"
+    lines.append(head)
+    for label, win, edge in (("switch-on ", getattr(s, "on_window", None), getattr(s, "on_edge", None)),
+                             ("switch-off", getattr(s, "off_window", None), getattr(s, "off_edge", None))):
+        if win is None:
+            lines.append(f"{label} window: none")
+            continue
+        a, b = (_f(win[0]), _f(win[1])) if len(win) == 2 else (None, None)
+        w = (b - a) if a is not None and b is not None else None
+        lines.append(f"{label} edge {eng(edge, 's', 6)}  window {eng(a, 's', 5)} … "
+                     f"{eng(b, 's', 5)} ({eng(w, 's', 3)})")
+    margin = getattr(s, "margin", None)
+    sigma = getattr(s, "margin_sigma", None)
+    sig = "∞" if sigma is not None and _f(sigma) is None and sigma == sigma else (
+        f"{float(sigma):.1f} σ" if _f(sigma) is not None else "—")
+    lines.append(f"gate width {eng(getattr(s, 'gate_width', None), 's', 6)}   "
+                 f"margin ±{eng(margin, 's', 3)} ({sig} of jitter)")
+    return lines
+
+
+@dataclass
+class TableView:
+    """The generator table: header lines, then per row its line, its note and its problem."""
+
+    header: list[str]
+    rows: list[tuple[str, str, Optional[str]]] = field(default_factory=list)
+    source: str = ""  # "setup card" | "timing rows"
+
+
+HEADERS = ("output", "drives", "delay", "width", "note")
+
+
+def _cell_time(x) -> str:
+    return eng(x, "s", 4, "n") if _f(x) is not None else ""
+
+
+def generator_table(plan) -> Optional[TableView]:
+    """The delay-generator table as ``plan`` prints it (None when timing is not available).
+
+    Uses the setup card's renderer when it exists (``timing_table_rows(plan)`` in
+    :mod:`regentime.reports.setup_card`, one string per line); else renders
+    ``plan.timing.rows`` with the shared text-table renderer, the long notes under each row.
+    """
+    if plan.timing is None:
+        return None
+    rows = list(getattr(plan.timing, "rows", []) or [])
+    card = _setup_card()
+    fn = getattr(card, "timing_table_rows", None) if card is not None else None
+    if fn is not None:
+        lines = [str(x) for x in fn(plan)]
+        problems = {str(r.output): str(r.problem) for r in rows if getattr(r, "problem", None)}
+        out = []
+        for line in lines[2:]:
+            words = line.split()
+            out.append((line, "", problems.get(words[0]) if words else None))
+        return TableView(lines[:2], out, "setup card")
+    from regentime.reports.tables import text_table
+
+    cells = [[r.output, r.drives, _cell_time(r.delay) or "—", _cell_time(getattr(r, "width", None))]
+             for r in rows]
+    lines = text_table(HEADERS[:4], cells, align="llrr", indent="").split("\n")
+    out = [(lines[i + 2], getattr(r, "note", "") or "", getattr(r, "problem", None) or None)
+           for i, r in enumerate(rows)]
+    return TableView(lines[:2], out, "timing rows")
+
+
+def table_rows(plan) -> tuple[tuple[str, ...], list[list[str]]]:
+    """Headers and cells of the generator table, for the Markdown/CSV export."""
+    rows = list(getattr(plan.timing, "rows", []) or []) if plan.timing is not None else []
+    cells = []
+    for r in rows:
+        cells.append([str(r.output), str(r.drives),
+                      eng(r.delay, "s", 4, "n") if _f(r.delay) is not None else "—",
+                      eng(getattr(r, "width", None), "s", 4, "n")
+                      if _f(getattr(r, "width", None)) is not None else "",
+                      (getattr(r, "note", "") or "") +
+                      (f" PROBLEM: {r.problem}" if getattr(r, "problem", None) else "")])
+    return HEADERS, cells
+
+
+def contrast_lines(plan) -> list[str]:
+    c = plan.contrast
+    if c is None:
+        return [f"contrast: {NOT_YET}"]
+
+    def ratio(x) -> str:
+        try:
+            if math.isinf(float(x)):
+                return "∞ (no satellite)"
+        except (TypeError, ValueError):
+            pass
+        v = _f(x)
+        if v is None:
+            return "—"
+        db = 10 * math.log10(v) if v > 0 else float("nan")
+        return f"{v:.3g}:1 ({db:.1f} dB)"
+
+    lines = [f"nearest pre-pulse  {ratio(getattr(c, 'nearest_pre_ratio', None))}",
+             f"worst pre-pulse    {ratio(getattr(c, 'worst_pre_ratio', None))}",
+             f"worst post-pulse   {ratio(getattr(c, 'worst_post_ratio', None))}"]
+    cleaned = getattr(c, "cleaned", None)
+    if cleaned is not None:
+        src = getattr(cleaned, "summary", cleaned)
+        get = (src.get if isinstance(src, dict) else lambda k, d=None: getattr(src, k, d))
+        lines.append("with the cleaner cell:")
+        lines.append(f"  worst pre-pulse  {ratio(get('worst_pre_ratio'))}")
+        lines.append(f"  worst post-pulse {ratio(get('worst_post_ratio'))}")
+    return lines
+
+
+LEVEL_MARK = {"error": "✗", "warning": "!", "info": "·"}
+
+
+def check_lines(plan) -> list[tuple[str, str]]:
+    """(level, text) for every check, errors first."""
+    order = {"error": 0, "warning": 1, "info": 2}
+    checks = sorted(plan.checks, key=lambda c: order.get(c.level, 3))
+    out = [(c.level, f"{LEVEL_MARK.get(c.level, '?')} {c.name}: {c.message}") for c in checks]
+    if plan.switching is None:
+        out.append(("info", f"· windows: {NOT_YET}"))
+    return out
+
+
+def sensitivity_text(plan, n: int) -> str:
+    b = plan.buildup
+    if n >= len(b.sensitivity_pump):
+        return ""
+    sp, ss = _f(b.sensitivity_pump[n]), _f(b.sensitivity_seed[n])
+    show = lambda x: "—" if x is None else f"{x:+.3f}"  # noqa: E731
+    return (f"after round trip {n}: d ln E_out / d ln pump = {show(sp)},  "
+            f"d ln E_out / d ln seed = {show(ss)}")
+
+
+def element_summary(kind: str, fields: Any) -> str:
+    """'space 250 mm', 'mirror end-A  reflectivity 99.8 %' - the file's own text."""
+    if not isinstance(fields, dict):
+        return f"{kind} {fields}" if fields not in (None, "") else kind
+    name = fields.get("name")
+    rest = [f"{k} {v}" for k, v in fields.items() if k != "name"]
+    head = f"{kind} {name}" if name else kind
+    return (head + "  " + ", ".join(rest)).rstrip()
+
+
+def _setup_card():
+    import importlib
+
+    try:
+        return importlib.import_module("regentime.reports.setup_card")
+    except ModuleNotFoundError as exc:
+        if exc.name == "regentime.reports.setup_card":
+            return None
+        raise
