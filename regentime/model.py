@@ -143,7 +143,7 @@ class PockelsCell(Element):
     voltage: Optional[float] = None  # V actually applied (None: the scheme's nominal voltage)
     aperture: Optional[float] = None  # m, electrode gap (transverse cells)
     electro_optic_coefficient: Optional[float] = None  # m/V (override of the library value)
-    contrast: float = 1.0e4  # static contrast (depolarisation 1/contrast)
+    contrast: float = 1000.0  # static contrast (depolarisation 1/contrast); common practice
     single_pass_transmission: float = 1.0
     group_index: Optional[float] = None
     axis: str = "o"

@@ -153,6 +153,22 @@ class BuildupResult:
         return np.arange(self.energy.shape[0])
 
 
+def b_integral_increment(n2, intensity, length, wavelength):
+    """B-integral of one crossing, rad: B = (2π/λ) n2 I L.
+
+    n2 in m²/W, peak intensity I in W/m², crystal length L and wavelength λ in m.  Valid for a
+    collimated beam whose intensity is constant along the crystal (use the mean of the input and
+    output intensity of an amplifying pass).  Reference: e.g. S. Backus et al., Rev. Sci.
+    Instrum. 69, 1207 (1998); A. E. Siegman, Lasers.
+    """
+    return 2.0 * np.pi / wavelength * n2 * intensity * length
+
+
+def peak_intensity(peak_fluence, fwhm):
+    """Peak intensity of a Gaussian pulse, W/m²: I = F / (τ_FWHM · √(π/(4 ln 2)))."""
+    return peak_fluence / (SQRT_PI_LN2 * fwhm)
+
+
 def _gain_pass(energy, j_st, gm: GainModel):
     f_in = energy[..., None] * gm.grid.mode
     g = (j_st - gm.j_tr) / gm.j_sat
@@ -167,8 +183,8 @@ def _apply(ops, energy, j_st, gm: GainModel, track: bool):
     peak = np.zeros_like(energy) if track else None
     b_add = np.zeros_like(energy) if track else None
     k_peak = gm.grid.peak_factor / gm.area
-    # B per crossing: (2π/λ) n2 I L, I = F_peak / (1.0645 τ_FWHM), F the mean of in and out
-    b_coeff = 2.0 * np.pi / gm.wavelength * gm.n2 * gm.length / (SQRT_PI_LN2 * gm.pulse_duration)
+    # B per crossing with the mean of the input and output peak fluence
+    b_coeff = b_integral_increment(gm.n2, peak_intensity(1.0, gm.pulse_duration), gm.length, gm.wavelength)
     for op in ops:
         if op == "gain":
             e_in = energy

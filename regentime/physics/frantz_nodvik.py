@@ -42,11 +42,13 @@ def frantz_nodvik(j_in, log_gain, j_sat):
     j_sat = np.asarray(j_sat, dtype=float)
     x = j_in / j_sat
     big = x > _X_SWITCH
+    any_big = bool(big.any())
     with np.errstate(over="ignore", invalid="ignore"):
-        # small x: ln(1 + G0 (e^x - 1))
-        y_small = np.log1p(np.exp(g) * np.expm1(np.where(big, 0.0, x)))
-        # large x: x + g + ln(1 + (e^{-g} - 1) e^{-x})
-        extracted_big = g + np.log1p(np.expm1(-g) * np.exp(-np.where(big, x, 0.0)))
-    gained = np.where(big, extracted_big, y_small - x)  # (J_out - J_in)/J_sat
+        # small x: ln(1 + G0 (e^x - 1)) - x
+        gained = np.log1p(np.exp(g) * np.expm1(np.where(big, 0.0, x) if any_big else x)) - x
+        if any_big:
+            # large x: g + ln(1 + (e^{-g} - 1) e^{-x})
+            extracted_big = g + np.log1p(np.expm1(-g) * np.exp(-np.where(big, x, 0.0)))
+            gained = np.where(big, extracted_big, gained)  # (J_out - J_in)/J_sat
     j_out = j_in + gained * j_sat
     return j_out, g - gained

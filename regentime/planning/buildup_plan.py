@@ -104,7 +104,7 @@ _SECANT_STEPS = 4  # from the grid's ~1e-3 to ≲1e-9 relative (checked against 
 
 def _newton(gm, path, seeds, ns, period, x0, slope):
     """Polish fixed points of the exact shot map: one Newton step with the grid's slope F',
-    then secant steps on h(x) = F(x) − x.  Returns ``(output, x)``."""
+    then secant steps on h(x) = F(x) − x.  Returns ``(output, x, F'(x))``."""
     x_prev = x0
     h_prev = steady.shot_map(gm, path, seeds, x_prev, ns, period)[1] - x_prev
     x = np.clip(x_prev - h_prev / np.minimum(slope - 1.0, -1e-3), 0.0, None)
@@ -117,7 +117,10 @@ def _newton(gm, path, seeds, ns, period, x0, slope):
         x_prev, h_prev = x, h
         x = np.clip(x - step, 0.0, None)
     out, _ = steady.shot_map(gm, path, seeds, x, ns, period)
-    return out, x
+    h = np.maximum(x * 1e-6, 1e-18)
+    slope = (steady.shot_map(gm, path, seeds, x + h, ns, period)[1]
+             - steady.shot_map(gm, path, seeds, x - h, ns, period)[1]) / (2 * h)
+    return out, x, slope
 
 
 def _continuous(cavity: Cavity, gm: GainModel, path: RoundTripPath, n: int, must=None):
@@ -153,8 +156,8 @@ def _continuous(cavity: Cavity, gm: GainModel, path: RoundTripPath, n: int, must
     if gm.grid.rings == 1:
         cand = np.arange(n_fit)
     else:
-        top = int(np.nanargmax(nominal)) + 1
-        cand = np.flatnonzero((nominal >= 0.8 * np.nanmax(nominal)) | (np.arange(n_fit) < 1.6 * top + 10))
+        top = int(np.nanargmax(nominal))
+        cand = np.flatnonzero((nominal >= 0.85 * np.nanmax(nominal)) | (np.abs(np.arange(n_fit) - top) <= 3))
         if must is not None and 1 <= must <= n_fit:
             cand = np.union1d(cand, [must - 1])
     if cand.size:
@@ -165,10 +168,10 @@ def _continuous(cavity: Cavity, gm: GainModel, path: RoundTripPath, n: int, must
         x0 = np.concatenate([xs[cand] for xs in stars])
         sl = np.concatenate([sv[cand] for sv in slopes])
         gm_v = replace(gm, pump_rate=rates)
-        o, x_new = _newton(gm_v, path, seeds, nn, period, x0, sl)
-        polished = np.full(outs.shape, np.nan)  # the grid alone is too coarse to show
-        polished[:, cand] = o.reshape(nv, cand.size)
-        outs = polished
+        o, x_new, sl_exact = _newton(gm_v, path, seeds, nn, period, x0, sl)
+        slope = np.full(n_fit, np.nan)
+        slope[cand] = sl_exact[:cand.size]
+        outs[:, cand] = o.reshape(nv, cand.size)
     full = lambda a: np.concatenate([[np.nan], a])  # noqa: E731 - index by N
     with np.errstate(divide="ignore", invalid="ignore"):
         s_pump = (np.log(outs[1]) - np.log(outs[2])) / (np.log1p(d) - np.log1p(-d))

@@ -1,0 +1,50 @@
+"""Pictures to PNG files (matplotlib, Agg backend, imported only when a plot is asked for)."""
+
+from __future__ import annotations
+
+import io
+
+import numpy as np
+
+from regentime.errors import InputError
+
+
+def _pyplot(path: str):
+    try:
+        import matplotlib
+
+        matplotlib.use("Agg")
+        import matplotlib.pyplot as plt
+    except ImportError:  # pragma: no cover - depends on the environment
+        raise InputError("--plot", path, "matplotlib installed (pip install 'regentime[plot]')") from None
+    return plt
+
+
+def save_figure(fig, path: str) -> None:
+    """Render to memory, then write atomically (never a half-written PNG)."""
+    from regentime.commands.common import write_atomic
+
+    buf = io.BytesIO()
+    fig.savefig(buf, format="png", dpi=120)
+    write_atomic(path, buf.getvalue())
+
+
+def plot_buildup(plan, path: str) -> None:
+    """Energy per round trip (log scale), output if switched out, the dump and the peak marked."""
+    plt = _pyplot(path)
+    b, r = plan.buildup, plan.buildup.result
+    k = np.arange(b.n_shown + 1)
+    fig, ax = plt.subplots(figsize=(8, 4.5))
+    ax.semilogy(k, r.energy[: k.size], "o-", ms=3, label="in the cavity, E_k")
+    ax.semilogy(k[1:], b.output[1: k.size], "s-", ms=3, alpha=0.7, label="output if switched out after k")
+    ax.axvline(b.dump_round_trip, color="C3", ls="--", label=f"switch out: {b.dump_round_trip} ({b.rule})")
+    if b.peak_round_trip != b.dump_round_trip:
+        ax.axvline(b.peak_round_trip, color="C2", ls=":", label=f"peak output: {b.peak_round_trip}")
+    ax.set_xlabel("round trip")
+    ax.set_ylabel("energy (J)")
+    ax.set_title(f"{plan.cavity.name}: build-up, T_rt = {plan.optics.round_trip_time * 1e9:.3f} ns")
+    ax.grid(True, which="both", alpha=0.3)
+    ax.legend(loc="lower right", fontsize=8)
+    fig.tight_layout()
+    save_figure(fig, path)
+    plt.close(fig)
