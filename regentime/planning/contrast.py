@@ -201,7 +201,8 @@ class Shares:
     leak: ℓ, the share of a P pulse back from the on-state cell arm leaving by the port;
     off_out / off_keep: for a P pulse entering the off-state cell arm, the share leaving by
     the port / staying P in the cavity when it is back (before the polarizer's T_p, which the
-    round-trip path applies); seed_straight_on/off: share of a seed pulse at the polarizer
+    round-trip path applies); on_keep: P share of a P pulse back from the on-state cell arm;
+    seed_straight_on/off: share of a seed pulse at the polarizer
     sent straight back (R_s in, cell arm, reflected port); seed_round_off: share coming back
     after one round trip with the cell off (polarizer factors included, T_p twice).
     """
@@ -209,6 +210,7 @@ class Shares:
     leak: float
     off_out: float
     off_keep: float
+    on_keep: float
     seed_straight_on: float
     seed_straight_off: float
     seed_round_off: float
@@ -225,12 +227,15 @@ def polarisation_shares(cavity: Cavity, optics: CavityOptics) -> Shares:
     m_off = jones.cell_arm_mueller(optics.cell_arm, 0.0, 0.0, optics.cell.contrast)
     back = m_off @ jones.STOKES_P
     s_back = float(jones.s_share(back)) / float(back[0])
+    kept = m_on @ jones.STOKES_P
+    p_on = float(jones.p_share(kept)) / float(kept[0])
     seed_on = m_on @ (pol.reflection_s * jones.STOKES_S)
     s_seed_on = float(jones.s_share(seed_on)) / float(seed_on[0])
     return Shares(
         leak=leak,
         off_out=pc.port_share(pol.reflection_s, pol.extinction_ratio, s_back),
         off_keep=1.0 - s_back,  # the P share goes on (T_p applied by the path)
+        on_keep=p_on,
         seed_straight_on=pol.reflection_s * pc.port_share(pol.reflection_s, pol.extinction_ratio, s_seed_on),
         seed_straight_off=float(straight_off),
         seed_round_off=float(round_off),
@@ -334,10 +339,7 @@ def _post_pulses(cavity, optics, buildup, switching, sh: Shares, hist: _History,
     """Post-pulses from the share the switch-out leaves in the cavity (see the module notes)."""
     gm, path = buildup.gain, buildup.path
     trt = path.dt
-    ejected = getattr(switching, "ejected_share", None)
-    if ejected is None or not math.isfinite(ejected):
-        ejected = 1.0 - sh.off_keep  # instant, exact switching: only the static contrast
-    left = min(1.0, max(0.0, 1.0 - float(ejected)))
+    left = left_in_cavity(cavity, sh, getattr(switching, "ejected_share", None))
     rest_ops = path_from_passes([p for p in optics.passes if p.arm != "cell"], 1.0, trt).ops
     x = hist.back[-1] * left
     j = hist.j_after
@@ -360,6 +362,23 @@ def _post_pulses(cavity, optics, buildup, switching, sh: Shares, hist: _History,
     else:
         growing = len(out) > 2 and out[-1].energy > out[-2].energy
     return out, left, growing
+
+
+def left_in_cavity(cavity: Cavity, sh: Shares, ejected: Optional[float]) -> float:
+    """Share of the switched-out pulse that stays P (trapped) after the switch-off edge.
+
+    The switching plan's ``ejected_share`` η is the energy leaving by the port relative to
+    perfect polarisation optics (T_p² R_s): η = p_on · [s + (1 − s)/ER], with p_on the P share
+    after the last on-state cell-arm pass and s the S share after the edge pass (port share,
+    :func:`regentime.physics.contrast.port_share`).  Solved for s, the share left is 1 − s.
+    Without a switching plan (η None): an instant, exact switch, 1 − s = ``sh.off_keep``.
+    """
+    if ejected is None or not math.isfinite(ejected):
+        return sh.off_keep
+    er = cavity.elements_of(Polarizer)[0].extinction_ratio
+    inv = 0.0 if math.isinf(er) else 1.0 / er
+    s = (float(ejected) / max(sh.on_keep, 1e-300) - inv) / (1.0 - inv)
+    return min(1.0, max(0.0, 1.0 - s))
 
 
 def _seed_leak(cavity, optics, buildup, switching, sh: Shares, hist: _History, main: float,
@@ -505,15 +524,15 @@ def _cleaner_row(cavity: Cavity, plan: CleanerPlan, cable_delay: float):
         d_r = round(delay / res) * res
         rounding = d_r - delay
         delay, width = d_r, round(width / res) * res
-    note = (f"cleaner gate: 50 % edges {plan.width * 0.5e9:.3f} ns either side of the main pulse at the "
+    note = (("" if plan.fits else "edge too slow for one round trip; ")
+            + f"cleaner gate: 50 % edges {plan.width * 0.5e9:.3f} ns either side of the main pulse at the "
             f"cleaner (latency {cl.latency * 1e9:.3g} ns, cable {cable_delay * 1e9:.3g} ns)")
-    problem = ""
+    problem = None
     if plan.delay < 0:
-        problem = "negative delay"
-    elif not plan.fits:
-        problem = "edge longer than the space between satellites"
+        problem = "negative delay: the main pulse reaches the cleaner before its latency and cable allow"
     return _make_row(TimingRow, output=cl.output, drives="cleaner", delay=delay, width=width, note=note,
-                     problem=problem, rounding=rounding)
+                     problem=problem, rounding=rounding, event=plan.open_edge, latency=cl.latency,
+                     cable_delay=cable_delay)
 
 
 def _make_row(cls, **kw):
@@ -543,6 +562,7 @@ class TargetAnswer:
     contrast_now: float
     limit_by_contrast: float  # best ratio with a perfect polarizer and the file's contrast
     limit_by_extinction: float  # best ratio with a perfect cell and the file's polarizer
+    both_factor: Optional[float] = None  # improve ER and contrast both by this factor
 
     @property
     def met(self) -> bool:
@@ -557,7 +577,8 @@ class TargetAnswer:
                 if self.contrast_needed is not None else None,
                 "extinction_ratio_now": _finite(self.extinction_now), "contrast_now": _finite(self.contrast_now),
                 "best_ratio_with_perfect_polarizer": _finite(self.limit_by_contrast),
-                "best_ratio_with_perfect_cell": _finite(self.limit_by_extinction)}
+                "best_ratio_with_perfect_cell": _finite(self.limit_by_extinction),
+                "both_improved_by": _finite(self.both_factor) if self.both_factor is not None else None}
 
 
 def _with(cavity: Cavity, extinction: Optional[float] = None, contrast: Optional[float] = None) -> Cavity:
@@ -607,15 +628,18 @@ def required_for_target(cavity: Cavity, optics: CavityOptics, result: ContrastRe
     leak_c = _leak(cavity, optics, extinction=perfect)
     leak_e = _leak(cavity, optics, contrast=perfect)
 
+    er0, c0 = pol.extinction_ratio, cell.contrast
+
     def solve(kind):
-        floor = leak_c if kind == "extinction" else leak_e
+        floor = {"extinction": leak_c, "contrast": leak_e, "both": 0.0}[kind]
         if need <= floor * (1 + 1e-9):
             return None
-        f = (lambda x: _leak(cavity, optics, extinction=x)) if kind == "extinction" else \
-            (lambda x: _leak(cavity, optics, contrast=x))
-        lo, hi = 0.0, math.log10(perfect)  # log10 of the parameter
+        f = {"extinction": lambda x: _leak(cavity, optics, extinction=x),
+             "contrast": lambda x: _leak(cavity, optics, contrast=x),
+             "both": lambda x: _leak(cavity, optics, extinction=max(1.0 + 1e-9, er0 * x), contrast=c0 * x)}[kind]
+        lo, hi = (0.0, math.log10(perfect)) if kind != "both" else (-6.0, 12.0)  # log10 of the parameter
         if f(10 ** lo) <= need:
-            return 1.0
+            return 10 ** lo
         for _ in range(60):
             mid = 0.5 * (lo + hi)
             if f(10 ** mid) > need:
@@ -626,7 +650,7 @@ def required_for_target(cavity: Cavity, optics: CavityOptics, result: ContrastRe
 
     return TargetAnswer(target, which, now, need, solve("extinction"), solve("contrast"), pol.extinction_ratio,
                         cell.contrast, now * leak / leak_c if leak_c > 0 else math.inf,
-                        now * leak / leak_e if leak_e > 0 else math.inf)
+                        now * leak / leak_e if leak_e > 0 else math.inf, solve("both"))
 
 
 __all__ = ["CleanerPlan", "ContrastResult", "POST_FLOOR", "Satellite", "Shares", "Summary", "TargetAnswer",

@@ -72,6 +72,8 @@ def make_plan(cavity: Cavity, dump: Union[str, int, None] = None) -> Plan:
     contrast_mod = _optional("regentime.planning.contrast")
     if contrast_mod is not None and switching is not None:
         plan.contrast = contrast_mod.plan_contrast(cavity, optics, buildup, switching)
+        if plan.timing is not None:  # the cleaner's gate row, if the file has a cleaner
+            plan.timing.rows.extend(getattr(plan.contrast, "timing_rows", None) or ())
     stability_mod = _optional("regentime.planning.stability")
     if stability_mod is not None and cavity.pump.mode == "continuous":
         plan.stability = stability_mod.plan_stability_note(cavity, optics, buildup)
