@@ -83,7 +83,7 @@ def _summary_rows(c):
         return ["", "ratio E_main/E", "dB"], [(name, _ratio(r), _db(r)) for name, r in rows]
     after_vals = [after.nearest_pre_ratio, after.worst_pre_ratio, after.worst_post_ratio, after.worst_seed_ratio,
                   after.energy_within_ratio]
-    return (["", "ratio E_main/E", "dB", "after cleaner", "dB "],
+    return (["", "ratio E_main/E", "dB", "after cleaner", "dB after"],
             [(name, _ratio(r), _db(r), _ratio(a), _db(a)) for (name, r), a in zip(rows, after_vals)])
 
 
@@ -156,7 +156,7 @@ def format_text(plan, targets=None, markdown: bool = False, everything: bool = F
     rows, hidden = _rows(c, everything)
     headers = ["satellite", "#", "time from main", "from trigger", "energy", "ratio", "dB"]
     if c.cleaned is not None:
-        headers += ["after cleaner", "dB "]
+        headers += ["after cleaner", "dB after"]
     body = []
     for s, k in rows:
         row = [_KIND[s.kind], s.index, eng(s.time, "s", fixed_prefix="n", digits=3),
@@ -254,7 +254,7 @@ def plot_png(plan, dpi: int = 120) -> bytes:
     if c.cleaned is not None:
         k = c.cleaned
         panels.append(("after the cleaner", k.pre_pulses, k.post_pulses, k.seed_leak, k.main_energy))
-    fig, axes = plt.subplots(len(panels), 1, figsize=(9, 3.4 * len(panels) + 0.6), sharex=True, squeeze=False)
+    fig, axes = plt.subplots(len(panels), 1, figsize=(10.5, 3.4 * len(panels) + 0.6), sharex=True, squeeze=False)
     span = c.summary.span
     styles = {"pre": ("tab:red", "o", "leak pre-pulses"), "post": ("tab:blue", "s", "post-pulses"),
               "seed": ("tab:green", "^", "seed leakage")}
@@ -278,7 +278,7 @@ def plot_png(plan, dpi: int = 120) -> bytes:
         ax.set_ylabel("E / E_main")
         ax.set_title(f"{plan.cavity.name}: satellites {title}", fontsize=10)
         ax.grid(True, which="major", alpha=0.3)
-        ax.legend(fontsize=8, loc="lower left", ncol=5)
+        ax.legend(fontsize=8, loc="upper left", bbox_to_anchor=(1.01, 1.0), borderaxespad=0.0)
     axes[-1, 0].set_xlabel("time from the main pulse (ns)")
     from regentime.planning.plan import CAUTION_SHORT
 
