@@ -241,8 +241,7 @@ class Cable:
     @property
     def delay(self) -> float:
         """Signal delay of the cable, s: length / (velocity_factor * c)."""
-        from scipy.constants import c  # noqa: PLC0415 (cheap, but keep model import-free)
-
+        c = 299_792_458.0  # m/s, exact (SI); equals scipy.constants.c
         return self.length / (self.velocity_factor * c)
 
 

@@ -248,7 +248,8 @@ def saturation_fluence(medium: Union[str, GainMedium],
     Engineering (2006), ch. 4; Frantz–Nodvik (J. Appl. Phys. 34, 2346 (1963)); for
     quasi-three-level media the σ_e + σ_a form (REFERENCES.md).
     """
-    from scipy.constants import c, h
+    # exact SI 2019 values (equal to scipy.constants.h and .c; not imported: start-up time)
+    h, c = 6.62607015e-34, 299_792_458.0
 
     m = _resolve(medium)
     lam = m.wavelength if wavelength is None else float(wavelength)

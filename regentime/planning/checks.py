@@ -5,7 +5,8 @@ Every check produces a :class:`Check` with the numbers in its message; nothing i
 - Damage fluence of the crystal, scaled from its reference duration with √τ (B. C. Stuart et
   al., Phys. Rev. B 53, 1749 (1996): F_th ∝ τ^½ for pulses longer than about 50 ps); warned
   at 50 % of the scaled threshold (common practice: run at no more than about half the
-  damage fluence), error above it.
+  damage fluence) and, louder, above it.  Damage and B-integral are warnings, never errors:
+  exit code 3 is kept for timing that cannot be met (DESIGN.md "Exit codes").
 - Peak intensity I = F_peak / (1.0645 τ_FWHM) (Gaussian pulse) against a user-given damage
   intensity (``checks: {damage_intensity: …}``).
 - B-integral B = (2π/λ) Σ n2 I L over every crossing of the crystal up to the switch-out;
@@ -59,7 +60,7 @@ def run_checks(plan) -> list[Check]:
     if tau < 50e-12:
         text += "; √τ scaling is not valid below about 50 ps"
     if peak_f > f_dmg:
-        out.append(Check("error", "damage", "above damage: " + text))
+        out.append(Check("warning", "damage", "ABOVE the damage threshold: " + text))
     elif peak_f > _WARN_SHARE * f_dmg:
         out.append(Check("warning", "damage", f"above {int(_WARN_SHARE * 100)} % of damage: " + text))
     else:
@@ -67,7 +68,7 @@ def run_checks(plan) -> list[Check]:
     peak_i = peak_f / (SQRT_PI_LN2 * tau)
     if cav.checks.damage_intensity is not None:
         lim = cav.checks.damage_intensity
-        level = "error" if peak_i > lim else ("warning" if peak_i > _WARN_SHARE * lim else "info")
+        level = "warning" if peak_i > _WARN_SHARE * lim else "info"
         out.append(Check(level, "intensity",
                          f"peak intensity {peak_i / 1e13:.3g} GW/cm² vs damage intensity {lim / 1e13:.3g} GW/cm²"))
     else:
