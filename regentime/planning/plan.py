@@ -65,6 +65,8 @@ def make_plan(cavity: Cavity, dump: Union[str, int, None] = None) -> Plan:
         eff = getattr(switching, "switching_efficiency", 1.0)
         if eff != 1.0:
             buildup = plan_buildup(cavity, optics, switching_efficiency=eff)
+            if buildup.dump_round_trip != switching.dump_round_trip:  # keep the windows on the same N
+                switching = switching_mod.plan_switching(cavity, optics, buildup)
     plan = Plan(cavity, optics, buildup, switching)
     timing_mod = _optional("regentime.planning.timing")
     if timing_mod is not None and switching is not None:
