@@ -63,6 +63,10 @@ def run(args) -> int:
     cavity = load(args.file, allow_demo=True)
     plan = make_plan(cavity, dump=parse_dump(args.dump))
     emit(args, render(plan, args.format))
+    if args.format == "csv":  # the table stays machine-readable; the caution goes to the terminal
+        from regentime.planning.plan import CAUTION_SHORT
+
+        print(CAUTION_SHORT, file=sys.stderr)
     if args.plot:
         from regentime.reports.plots import plot_buildup
 
