@@ -46,6 +46,7 @@ class BuildupPlan:
     shots: Optional[steady.ShotSequence] = None  # continuous: shot sequence at the dump N
     net_gain_ok: bool = True
     n_shown: int = 0
+    repetition_rate: float = 0.0
 
     @property
     def output_energy(self) -> float:
@@ -53,7 +54,12 @@ class BuildupPlan:
 
     @property
     def extraction_efficiency(self) -> float:
-        """Output energy / energy stored in the mode at injection."""
+        """Pulsed pump: output energy / energy stored in the mode at injection.
+        Continuous pump: output power / stored-energy rate, E_out·f_rep / R (the share of the
+        energy stored per period that leaves in the pulse)."""
+        if self.continuous:
+            per_shot = self.gain.pump_rate / self.repetition_rate
+            return self.output_energy / per_shot if per_shot > 0 else 0.0
         return self.output_energy / self.stored_at_injection if self.stored_at_injection > 0 else 0.0
 
     @property
@@ -241,4 +247,5 @@ def plan_buildup(cavity: Cavity, optics: CavityOptics, switching_efficiency: flo
         stored0 = gm.stored_energy
     n_shown = int(min(n_top, max(dump, peak) + max(10, (max(dump, peak) + 1) // 2)))
     return BuildupPlan(optics, gm, path, res, dump, rule, peak, output, s_pump, s_seed, stored0,
-                       continuous, slope, shots, net_gain_ok=bool(net_log > 0), n_shown=n_shown)
+                       continuous, slope, shots, net_gain_ok=bool(net_log > 0), n_shown=n_shown,
+                       repetition_rate=cavity.repetition_rate)

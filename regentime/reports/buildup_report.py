@@ -54,7 +54,8 @@ def summary_lines(plan) -> list[str]:
         f"gain            J_sat {b.gain.j_sat / 1e4:.4g} J/cm², stored {eng(b.stored_at_injection, 'J')} at injection, "
         f"single-pass log gain {b.result.log_gain[0]:.4f} (G0 = {np.exp(b.result.log_gain[0]):.4g})",
         f"switch out      after round trip {b.dump_round_trip} ({b.rule}); peak output at {b.peak_round_trip}",
-        f"output          {eng(b.output_energy, 'J')}, extraction efficiency {b.extraction_efficiency * 100:.1f} % of the stored energy",
+        f"output          {eng(b.output_energy, 'J')}, extraction efficiency {b.extraction_efficiency * 100:.1f} % "
+        + ("of the energy stored per period (E_out·f_rep/R)" if b.continuous else "of the stored energy"),
     ]
     if b.continuous:
         per = "period 1 (one energy)" if b.period == 1 else ("irregular" if b.period == 0 else f"period {b.period}")
