@@ -5,6 +5,15 @@ continuous pump; M. Grishin, Opt. Express 15, 9434 (2007)) always has a fixed po
 0 and the equilibrium Rτ (F_N(0) > 0, F_N(Rτ) ≤ Rτ).  It is found for every candidate N at once
 by the Illinois variant of regula falsi; it is the operating point if |F_N'(x*)| < 1 (period 1).
 Otherwise the shot sequence is iterated and its period classified.
+
+Classification (the one place these numbers are set; :mod:`regentime.planning.stability` and
+:mod:`regentime.physics.dynamics` use them too): iterate from full storage Rτ, drop
+``TRANSIENT_SHOTS`` shots, observe ``OBSERVED_SHOTS``; the period is the smallest p in 1, 2,
+4, …, ``MAX_PERIOD`` with |E_i − E_{i−p}| ≤ ``PERIOD_REL_TOL`` · max E over the observed shots,
+else irregular (0).  A sequence still irregular gets up to ``EXTEND_ROUNDS`` more rounds of
+``EXTEND_SHOTS`` shots before the verdict: near a period-doubling boundary the approach to the
+orbit is slow (the multiplier is close to −1), and this resolves it without lengthening every
+point of a map.
 """
 
 from __future__ import annotations
@@ -17,6 +26,13 @@ from regentime.physics.buildup import GainModel, RoundTripPath, shot
 
 _REL_TOL = 1e-10  # relative tolerance on the stored energy at the fixed point
 _MAX_ITER = 80
+
+TRANSIENT_SHOTS = 400  # shots dropped before classifying (the transient from full storage)
+OBSERVED_SHOTS = 64  # shots classified: room for period 16 three times over
+PERIOD_REL_TOL = 1e-4  # of the largest observed output: well above the fast map's ~1e-6 error
+MAX_PERIOD = 16
+EXTEND_SHOTS = 1000  # further shots for a sequence still irregular ...
+EXTEND_ROUNDS = 2  # ... at most this many times
 
 
 def shot_map(gm: GainModel, path: RoundTripPath, seed, stored, n_rt, period):
@@ -82,7 +98,7 @@ class ShotSequence:
     maximum: float
 
 
-def classify(values: np.ndarray, rel_tol: float = 1e-4, max_period: int = 16) -> int:
+def classify(values: np.ndarray, rel_tol: float = PERIOD_REL_TOL, max_period: int = MAX_PERIOD) -> int:
     """Smallest p in 1, 2, 4, …, max_period with |v_i − v_{i−p}| ≤ rel_tol·max|v| over the
     observed shots, else 0 (irregular)."""
     scale = max(float(np.max(np.abs(values))), 1e-300)
@@ -95,13 +111,27 @@ def classify(values: np.ndarray, rel_tol: float = 1e-4, max_period: int = 16) ->
 
 
 def iterate_shots(gm: GainModel, path: RoundTripPath, seed, n_rt: int, period: float,
-                  transient: int = 400, observe: int = 64) -> ShotSequence:
-    """Iterate the shot map from full storage (Rτ), drop the transient, classify the period."""
+                  transient: int = TRANSIENT_SHOTS, observe: int = OBSERVED_SHOTS,
+                  extend_rounds: int = EXTEND_ROUNDS) -> ShotSequence:
+    """Iterate the exact shot map from full storage (Rτ), drop the transient, classify the
+    period; an irregular sequence is continued for up to ``extend_rounds`` × EXTEND_SHOTS
+    shots (see the module docstring)."""
     x = np.array([gm.pump_rate * gm.tau])
-    outs = np.empty(observe)
-    for s in range(transient + observe):
-        out, x = shot_map(gm, path, seed, x, np.array([n_rt]), period)
-        if s >= transient:
-            outs[s - transient] = out[0]
+    n_arr = np.array([n_rt])
+
+    def run(x, skip):
+        outs = np.empty(observe)
+        for s in range(skip + observe):
+            out, x = shot_map(gm, path, seed, x, n_arr, period)
+            if s >= skip:
+                outs[s - skip] = out[0]
+        return x, outs
+
+    x, outs = run(x, transient)
     p = classify(outs)
+    for _ in range(extend_rounds):
+        if p != 0:
+            break
+        x, outs = run(x, EXTEND_SHOTS)
+        p = classify(outs)
     return ShotSequence(p, outs, float(outs.mean()), float(outs.min()), float(outs.max()))
