@@ -115,3 +115,11 @@ def test_empty_and_non_numeric(tmp_path):
     with pytest.raises(InputError, match="--channel"):
         read_trace(_write(tmp_path / "ok.csv", "t,a\n" + "\n".join(f"{i}e-9,{i}" for i in range(40))),
                    channel="nope")
+
+
+def test_trailing_delimiter_rows(tmp_path):
+    """Rows ending in a delimiter (as some exporters write them) read like plain rows."""
+    text = "Time,CH1,\n" + "".join(f"{t:.6e},{v:.6e},\n" for t, v in zip(T, V1))
+    tr = read_trace(_write(tmp_path / "h.csv", text))
+    assert tr.channels == ("CH1",)
+    np.testing.assert_allclose(tr.signal, V1, rtol=1e-6, atol=1e-12)  # 7 significant digits printed

@@ -142,6 +142,8 @@ def _line_layout(line: str) -> Optional[tuple]:
     text = line.strip()
     if not text:
         return None
+    if text[-1] in ",;" and len(text) > 1:  # a trailing delimiter (some exporters end rows so)
+        text = text[:-1].rstrip()
     for delim in ("\t", ";"):
         if delim in text:
             f = _split(text, delim)
@@ -199,6 +201,7 @@ def _sniff(path: str, head: bytes) -> _Sniff:
     pre = [l.strip() for l in lines[:start] if l.strip()]
     hdr = [_split(l, delim) for l in pre]
     hdr = [[x.strip().strip('"').strip("'") for x in h] for h in hdr]
+    hdr = [h[:-1] if len(h) > 1 and h[-1] == "" else h for h in hdr]  # trailing delimiter
     matching = [h for h in hdr if len(h) == ncols]
     if matching:
         last = matching[-1]
@@ -339,7 +342,7 @@ def _parse_job(path: str, sn: _Sniff, job: tuple, out: np.ndarray):
                 with warnings.catch_warnings():
                     warnings.simplefilter("ignore")
                     arr = np.loadtxt(fh, delimiter=sn.delimiter, comments=None, max_rows=rows,
-                                     ndmin=2, dtype=np.float64)
+                                     ndmin=2, dtype=np.float64, usecols=range(sn.ncols))
             if arr.shape != (rows, sn.ncols):
                 return (line0, None)
             out[row0:row0 + rows] = arr
@@ -397,6 +400,8 @@ def _job_error(path: str, sn: _Sniff, err: tuple) -> InputError:
             text = raw.decode("utf-8", errors="replace").strip()
             if not text:
                 continue
+            if sn.delimiter and text.endswith(sn.delimiter) and len(text) > 1:
+                text = text[:-1].rstrip()
             fields = _split(text, sn.delimiter)
             if len(fields) != sn.ncols:
                 return InputError("", text[:60], f"{sn.ncols} fields like the rows above "
