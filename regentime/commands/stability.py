@@ -154,10 +154,6 @@ def run(args) -> int:
         from dataclasses import replace
 
         cavity = replace(cavity, dump=dump)
-    optics = cavity_optics(cavity)
-    buildup = plan_buildup(cavity, optics)
-    n_file = int(buildup.dump_round_trip)
-    at = int(args.at) if args.at else n_file
     f0 = cavity.repetition_rate
     continuous = cavity.pump.mode == "continuous"
     axis, values = "rate", None
@@ -179,25 +175,25 @@ def run(args) -> int:
             raise InputError("--rates", args.rates, "one rate when --seed-energies or --pump is swept")
     elif axis == "rate":
         values = np.unique(np.concatenate([np.linspace(0.2 * f0, 2.0 * f0, 120), [f0]]))
-    if args.round_trips:
-        ns = parse_round_trips(args.round_trips)
-    else:
+    ns = parse_round_trips(args.round_trips) if args.round_trips else None
+    optics = cavity_optics(cavity)
+    buildup = plan_buildup(cavity, optics)
+    n_file = int(buildup.dump_round_trip)
+    at = int(args.at) if args.at else n_file
+    if ns is None:
         top = max(n_file, int(buildup.peak_round_trip))
         ns = np.arange(1, max(20, 3 * top) + 1)
     total = ns.size * values.size
     progress = None
     if not args.no_progress and total * max(1, int(ns[-1])) > 2e5 and sys.stderr.isatty():
         progress = _progress_bar()
-    try:
-        if progress is not None:
-            with progress[0]:
-                m = st.stability_map(cavity, ns, axis, values, rate=fixed_rate, optics=optics,
-                                     ring_memory=args.ring_memory, file_round_trip=n_file, on_progress=progress[1])
-        else:
+    if progress is not None:
+        with progress[0]:
             m = st.stability_map(cavity, ns, axis, values, rate=fixed_rate, optics=optics,
-                                 ring_memory=args.ring_memory, file_round_trip=n_file)
-    finally:
-        pass
+                                 ring_memory=args.ring_memory, file_round_trip=n_file, on_progress=progress[1])
+    else:
+        m = st.stability_map(cavity, ns, axis, values, rate=fixed_rate, optics=optics,
+                             ring_memory=args.ring_memory, file_round_trip=n_file)
     noise = st.noise_transfer(cavity, optics, buildup)
     mc = None
     if pump_rms is not None or seed_rms:
