@@ -246,8 +246,10 @@ def fit_buildup(amplitudes, sigma: float, inputs: BuildupInputs = BuildupInputs(
             return np.exp(p[3]) * x
 
         names = ["start_log_gain", "round_trip_loss", "log_start_energy", "log_scale"]
-        starts = _free_starts(a, r_est, loss0, npass, ops, decay, g_eq, rings)
-        lb = [-5.0, 0.0, np.log(_X_MIN), -np.inf]
+        # the first measured pulse has at least the injected energy (it has grown since)
+        lx_min = np.log(x_seed) if x_seed else np.log(_X_MIN)
+        starts = _free_starts(a, r_est, loss0, npass, ops, decay, g_eq, rings, lx_min)
+        lb = [-5.0, 0.0, lx_min, -np.inf]
         ub = [30.0, 0.99, np.log(_X_MAX), np.inf]
 
     prior = _priors(inputs)
@@ -325,6 +327,10 @@ def fit_buildup(amplitudes, sigma: float, inputs: BuildupInputs = BuildupInputs(
         "round_trip_loss": inputs.round_trip_loss,
         "seed_energy_J": inputs.seed_energy,
     }
+    if not anchored and x_seed and p[2] <= lb[2] + 1e-3:
+        notes.append("the fit put the first measured pulse at the injected seed energy (a bound): "
+                     "the record shows too little of the build-up; the predicted peak rests on the "
+                     "file's gain and loss and may be off by a few round trips")
     if peak is not None and peak_range[1] - peak_range[0] > 10:
         notes.append("the data fix the peak poorly (little saturation in the record): "
                      f"its index spans {peak_range[0]}…{peak_range[1]} over the fit's uncertainty")
@@ -386,11 +392,11 @@ def _best_scale(a: np.ndarray, x: np.ndarray) -> float:
     return float(np.dot(a, x) / den) if den > 0 else 0.0
 
 
-def _free_starts(a, r_est, loss0, npass, ops, decay, g_eq, rings, keep: int = 4) -> list:
+def _free_starts(a, r_est, loss0, npass, ops, decay, g_eq, rings, lx_min, keep: int = 4) -> list:
     """Grid over (loss, ln x1) with g1 from the observed growth; best `keep` as starts."""
     n = a.size
     losses = np.array(_loss_grid(loss0))
-    lx = np.linspace(np.log(1e-12), np.log(5.0), 70)
+    lx = np.linspace(max(np.log(1e-12), lx_min + 1e-6), np.log(5.0), 70)
     L, LX = np.meshgrid(losses, lx, indexing="ij")
     G = (np.log(r_est) - np.log1p(-L)) / npass
     x, _ = envelope(np.exp(LX), G, 1.0 - L, n, ops, decay, g_eq, rings)  # (n, nl, nx)
