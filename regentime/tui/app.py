@@ -13,7 +13,7 @@ import os
 import time
 from typing import Any, Iterable, Optional
 
-from textual import work
+from textual import events, work
 from textual.app import App, ComposeResult, SystemCommand
 from textual.binding import Binding
 from textual.containers import Horizontal, VerticalScroll
@@ -102,6 +102,8 @@ class PlannerApp(App[int]):
         self.last_plan_seconds = 0.0
         self.watch_interval = watch_interval
         self._asking_disk = False
+        self._plan_running = False
+        self._plan_wanted: Optional[tuple] = None
 
     # ---- layout ----------------------------------------------------------------------------
     def compose(self) -> ComposeResult:
@@ -169,11 +171,11 @@ class PlannerApp(App[int]):
         else:
             self.exit(2)
 
-    def on_resize(self) -> None:
-        self._layout_classes()
+    def on_resize(self, event: events.Resize) -> None:
+        self._layout_classes(event.size)
 
-    def _layout_classes(self) -> None:
-        w, h = self.size
+    def _layout_classes(self, size=None) -> None:
+        w, h = size or self.size
         self.screen.set_class(w < 110, "narrow")
         self.screen.set_class(h < 32, "short")
         self.screen.set_class(h >= 46, "tall")
@@ -201,12 +203,32 @@ class PlannerApp(App[int]):
 
     # ---- planning --------------------------------------------------------------------------
     def request_plan(self) -> None:
-        """Plan the document as it is now (a newer request cancels this one)."""
+        """Plan the document as it is now.
+
+        A newer request supersedes an older one: the older run's result is dropped (its
+        generation is stale) and, rather than start a second thread that would compete with
+        the first for the interpreter, the newest request waits for the running one to end
+        and then runs; requests made in between are skipped.
+        """
         if self.doc is None:
             return
         self.generation += 1
-        self._plan_worker(self.doc.text(), self.doc.source, self.override, self.generation,
-                          time.perf_counter())
+        self._plan_wanted = (self.doc.text(), self.doc.source, self.override, self.generation,
+                        time.perf_counter())
+        if not self._plan_running:
+            self._start_next()
+
+    def _start_next(self) -> None:
+        if self._plan_wanted is None:
+            return
+        args, self._plan_wanted = self._plan_wanted, None
+        self._plan_running = True
+        self._plan_worker(*args)
+
+    @property
+    def planning(self) -> bool:
+        """True while a plan is being made or waits to be made."""
+        return self._plan_running or self._plan_wanted is not None
 
     @work(thread=True, exclusive=True, group="plan", exit_on_error=False)
     def _plan_worker(self, text: str, source: Optional[str], override: Any, gen: int,
@@ -215,18 +237,27 @@ class PlannerApp(App[int]):
         from regentime.planning.plan import make_plan
 
         worker = get_current_worker()
+        outcome: tuple = ("none",)
         try:
-            plan = make_plan(load_cavity_text(text, source), dump=override)
+            if gen == self.generation:  # skip work already superseded
+                outcome = ("ok", make_plan(load_cavity_text(text, source), dump=override))
         except (InputError, InputErrors, PlanError) as exc:
-            if not worker.is_cancelled:
-                self.call_from_thread(self._plan_failed, gen, exc)
-            return
+            outcome = ("input", exc)
         except Exception as exc:  # noqa: BLE001 - a bug in planning: shown, never a crash
-            if not worker.is_cancelled:
-                self.call_from_thread(self._plan_crashed, gen, exc)
-            return
+            outcome = ("bug", exc)
         if not worker.is_cancelled:
-            self.call_from_thread(self._plan_ready, gen, plan, started)
+            self.call_from_thread(self._plan_finished, gen, outcome, started)
+
+    def _plan_finished(self, gen: int, outcome: tuple, started: float) -> None:
+        self._plan_running = False
+        kind = outcome[0]
+        if kind == "ok":
+            self._plan_ready(gen, outcome[1], started)
+        elif kind == "input":
+            self._plan_failed(gen, outcome[1])
+        elif kind == "bug":
+            self._plan_crashed(gen, outcome[1])
+        self._start_next()
 
     def _plan_ready(self, gen: int, plan, started: float) -> None:
         if gen != self.generation:

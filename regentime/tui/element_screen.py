@@ -31,8 +31,9 @@ class ElementScreen(ModalScreen[None]):
         super().__init__()
         self.doc = doc
         self.index = index
-        item = doc.get(f"cavity[{index}]")
-        self.kind = next(iter(item)) if isinstance(item, dict) and len(item) == 1 else "?"
+        items = doc.get("cavity") or []
+        item = items[index] if 0 <= index < len(items) else None
+        self.kind = str(next(iter(item))) if isinstance(item, dict) and len(item) == 1 else "?"
 
     def compose(self) -> ComposeResult:
         section = ELEMENTS.get(self.kind)

@@ -59,6 +59,9 @@ def csv_text(plan) -> str:
     """The generator table with SI numbers (delay_s, width_s) for spreadsheets."""
     if plan.timing is None:
         raise InputError("export", "csv", f"a plan with a generator table ({view.NOT_YET})")
+    card = _optional("regentime.reports.setup_card")
+    if card is not None and hasattr(card, "timing_csv"):
+        return card.timing_csv(plan)  # the same CSV as `regentime plan --format csv`
     from regentime.reports.tables import csv_table
 
     rows = []

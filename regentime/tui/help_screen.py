@@ -54,9 +54,9 @@ class HelpScreen(ModalScreen[None]):
         with Vertical():
             yield Static("regentime terminal planner - help   (escape closes)", classes="title")
             with VerticalScroll(id="help-body"):
-                yield Static(self._keys_table())
-                yield Static(self._regions_table())
-                yield Static(Text(self.caution, style="bold yellow"))
+                yield Static(self._keys_table(), id="help-keys")
+                yield Static(self._regions_table(), id="help-regions")
+                yield Static(Text(self.caution, style="bold yellow"), id="help-caution")
 
     def _keys_table(self) -> Table:
         table = Table(title="Keys", title_justify="left", expand=True, show_header=False,

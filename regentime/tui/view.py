@@ -45,6 +45,12 @@ def summary_line(plan, override: Any = None) -> str:
     return " │ ".join(parts)
 
 
+def ns(x: Any) -> str:
+    """Nanoseconds with 3 decimals (1 ps), as the setup card prints times: '389.439 ns'."""
+    v = _f(x)
+    return "—" if v is None else f"{v * 1e9:.3f} ns"
+
+
 def switching_lines(plan) -> list[str]:
     """Switch-on/off windows, edges, gate width and jitter margin (ns and sigmas)."""
     s = plan.switching
@@ -53,25 +59,28 @@ def switching_lines(plan) -> list[str]:
     lines = []
     scheme = getattr(s, "scheme", None) or getattr(plan.cavity.switch, "scheme", "")
     seed_i = getattr(s, "seed_pulse_index", None)
-    head = f"scheme {scheme}"
+    head = f"{scheme} scheme"
     if seed_i is not None:
-        head += f"   seed pulse #{seed_i} trapped"
+        head += f", seed pulse #{seed_i} trapped"
     lines.append(head)
     for label, win, edge in (("switch-on ", getattr(s, "on_window", None), getattr(s, "on_edge", None)),
                              ("switch-off", getattr(s, "off_window", None), getattr(s, "off_edge", None))):
         if win is None:
-            lines.append(f"{label} window: none")
+            lines.append(f"{label} edge {ns(edge)}  NO WINDOW (the edge cannot be placed cleanly)")
             continue
         a, b = (_f(win[0]), _f(win[1])) if len(win) == 2 else (None, None)
         w = (b - a) if a is not None and b is not None else None
-        lines.append(f"{label} edge {eng(edge, 's', 6)}  window {eng(a, 's', 5)} … "
-                     f"{eng(b, 's', 5)} ({eng(w, 's', 3)})")
-    margin = getattr(s, "margin", None)
-    sigma = getattr(s, "margin_sigma", None)
-    sig = "∞" if sigma is not None and _f(sigma) is None and sigma == sigma else (
-        f"{float(sigma):.1f} σ" if _f(sigma) is not None else "—")
-    lines.append(f"gate width {eng(getattr(s, 'gate_width', None), 's', 6)}   "
-                 f"margin ±{eng(margin, 's', 3)} ({sig} of jitter)")
+        lines.append(f"{label} edge {ns(edge)}  window {ns(a)} … {ns(b)} (width {ns(w)})")
+    sigma = _f(getattr(s, "margin_sigma", None))
+    raw_sigma = getattr(s, "margin_sigma", None)
+    if sigma is not None:
+        sig = f"{sigma:.1f} σ"
+    elif isinstance(raw_sigma, float) and math.isinf(raw_sigma):
+        sig = "∞ σ, no jitter given"
+    else:
+        sig = "— σ"
+    lines.append(f"gate width {ns(getattr(s, 'gate_width', None))}   "
+                 f"margin ±{ns(getattr(s, 'margin', None))} = {sig} of jitter")
     return lines
 
 
@@ -94,31 +103,28 @@ def _cell_time(x) -> str:
 def generator_table(plan) -> Optional[TableView]:
     """The delay-generator table as ``plan`` prints it (None when timing is not available).
 
-    Uses the setup card's renderer when it exists (``timing_table_rows(plan)`` in
-    :mod:`regentime.reports.setup_card`, one string per line); else renders
-    ``plan.timing.rows`` with the shared text-table renderer, the long notes under each row.
+    Uses the setup card's rows and columns (:mod:`regentime.reports.setup_card`, the same
+    text-table renderer as ``regentime plan``); each row's note and problem come with it.
+    Without the setup card, renders ``plan.timing.rows`` with the shared renderer.
     """
     if plan.timing is None:
         return None
-    rows = list(getattr(plan.timing, "rows", []) or [])
-    card = _setup_card()
-    fn = getattr(card, "timing_table_rows", None) if card is not None else None
-    if fn is not None:
-        lines = [str(x) for x in fn(plan)]
-        problems = {str(r.output): str(r.problem) for r in rows if getattr(r, "problem", None)}
-        out = []
-        for line in lines[2:]:
-            words = line.split()
-            out.append((line, "", problems.get(words[0]) if words else None))
-        return TableView(lines[:2], out, "setup card")
     from regentime.reports.tables import text_table
 
-    cells = [[r.output, r.drives, _cell_time(r.delay) or "—", _cell_time(getattr(r, "width", None))]
-             for r in rows]
-    lines = text_table(HEADERS[:4], cells, align="llrr", indent="").split("\n")
+    rows = list(getattr(plan.timing, "rows", []) or [])
+    card = _setup_card()
+    head = getattr(card, "TABLE_HEAD", None) or getattr(card, "_HEAD", None)
+    if card is not None and head is not None and hasattr(card, "table_rows"):
+        lines = text_table(head, card.table_rows(plan), align="llrrrl", indent="").split("\n")
+        source = "setup card"
+    else:
+        cells = [[r.output, r.drives, _cell_time(r.delay) or "—",
+                  _cell_time(getattr(r, "width", None))] for r in rows]
+        lines = text_table(HEADERS[:4], cells, align="llrr", indent="").split("\n")
+        source = "timing rows"
     out = [(lines[i + 2], getattr(r, "note", "") or "", getattr(r, "problem", None) or None)
            for i, r in enumerate(rows)]
-    return TableView(lines[:2], out, "timing rows")
+    return TableView(lines[:2], out, source)
 
 
 def table_rows(plan) -> tuple[tuple[str, ...], list[list[str]]]:
