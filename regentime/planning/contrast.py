@@ -41,6 +41,7 @@ from regentime.planning.checks import Check
 
 POST_FLOOR = 1e-9  # post-pulses are followed until below this share of the main pulse (issue 4)
 _MAX_POST = 5000  # round trips; a guard for a leftover that does not decay (it is reported)
+_MAX_SEEDS = 20000  # seed pulses listed at most (a guard on --span: each costs a gain pass)
 _PULSE_WIDTHS = 2.0  # a pulse occupies ±1 FWHM around its centre for the cleaner-gate fit
 
 
@@ -322,10 +323,13 @@ def plan_contrast(cavity: Cavity, optics: CavityOptics, buildup, switching,
 
     post, left, growing = _post_pulses(cavity, optics, buildup, switching, sh, hist, main)
     if growing:
+        top = max(post, key=lambda s: s.energy)
         checks.append(Check("warning", "contrast",
                             f"the light left in the cavity after the switch-out ({left:.2e} of the pulse) "
-                            "is not decaying: the gain left exceeds the losses, so a second pulse builds up "
-                            "after the main one; switch out later or lower the pump"))
+                            "grows: the gain left exceeds the round-trip losses, so a second pulse builds up "
+                            f"after the main one (largest post-pulse {top.energy:.3g} J, ratio {top.ratio:.3g}, "
+                            f"at +{top.index} round trips); switch out later, lower the pump or improve "
+                            "the switch-out"))
     seeds = _seed_leak(cavity, optics, buildup, switching, sh, hist, main, span)
     summary = _summary(main, pre, post, seeds, span)
     result = ContrastResult(main, t_main, trt, n, pre, post, seeds, summary, sh.leak, sh.off_keep,
@@ -359,8 +363,7 @@ def _post_pulses(cavity, optics, buildup, switching, sh: Shares, hist: _History,
         x = back * sh.off_keep
         if e < POST_FLOOR * main and (i > 1 or e == 0.0):
             break
-    else:
-        growing = len(out) > 2 and out[-1].energy > out[-2].energy
+    growing = len(out) > 1 and max(s.energy for s in out[1:]) > out[0].energy
     return out, left, growing
 
 
@@ -403,6 +406,11 @@ def _seed_leak(cavity, optics, buildup, switching, sh: Shares, hist: _History, m
     # trip and one cell-arm pass later
     lo = math.floor((hist.t_out - span - trt - t_ca - seed.arrival) / dt)
     hi = math.ceil((hist.t_out + span - seed.arrival) / dt)
+    if hi - lo > _MAX_SEEDS:
+        from regentime.errors import InputError
+
+        raise InputError("--span", span, f"a span holding at most {_MAX_SEEDS} seed pulses "
+                         f"(at most {_MAX_SEEDS * dt / 2 * 1e6:.3g} µs at {seed.train_rate / 1e6:.4g} MHz)")
     for m in range(lo, hi + 1):
         t_m = seed.arrival + m * dt
         if m == m0:
