@@ -161,3 +161,17 @@ def test_recovery_factor_flags_settings_that_do_not_fit():
     assert fits.tolist() == [True, False]
     assert d[0] == pytest.approx(math.exp(-(1e-6 - 1e-7) / 1e-4))
     assert d[1] == 1.0
+
+
+def test_iterate_shots_tables_agree_with_exact(flat):
+    # steady.iterate_shots now iterates the tabulated map by default; the exact shot-by-shot
+    # iteration (the reference) must give the same period and energies within 1e-5
+    cav, gm, path = flat
+    for n, f in ((18, 50e3), (40, 20e3)):
+        fast = steady.iterate_shots(gm, path, cav.seed.energy, n, 1 / f)
+        ref = steady.iterate_shots(gm, path, cav.seed.energy, n, 1 / f, exact=True)
+        assert fast.period == ref.period
+        assert fast.minimum == pytest.approx(ref.minimum, rel=1e-5)
+        assert fast.maximum == pytest.approx(ref.maximum, rel=1e-5)
+    assert {steady.iterate_shots(gm, path, cav.seed.energy, 18, 1 / 50e3).period,
+            steady.iterate_shots(gm, path, cav.seed.energy, 40, 1 / 20e3).period} == {1, 2}

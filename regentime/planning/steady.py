@@ -112,10 +112,17 @@ def classify(values: np.ndarray, rel_tol: float = PERIOD_REL_TOL, max_period: in
 
 def iterate_shots(gm: GainModel, path: RoundTripPath, seed, n_rt: int, period: float,
                   transient: int = TRANSIENT_SHOTS, observe: int = OBSERVED_SHOTS,
-                  extend_rounds: int = EXTEND_ROUNDS) -> ShotSequence:
-    """Iterate the exact shot map from full storage (Rτ), drop the transient, classify the
-    period; an irregular sequence is continued for up to ``extend_rounds`` × EXTEND_SHOTS
-    shots (see the module docstring)."""
+                  extend_rounds: int = EXTEND_ROUNDS, exact: bool = False) -> ShotSequence:
+    """Iterate the shot map from full storage (Rτ), drop the transient, classify the period;
+    an irregular sequence is continued for up to ``extend_rounds`` × EXTEND_SHOTS shots (see
+    the module docstring).
+
+    By default the shot map is the tabulated one of :mod:`regentime.physics.dynamics` (built
+    for this N alone, relative output error ≲ 1e-6, checked at the grid midpoints; much faster
+    for the hundreds of shots needed); ``exact=True`` iterates :func:`shot_map` itself.
+    """
+    if not exact:
+        return _iterate_tables(gm, path, seed, n_rt, period, transient, observe, extend_rounds)
     x = np.array([gm.pump_rate * gm.tau])
     n_arr = np.array([n_rt])
 
@@ -135,3 +142,20 @@ def iterate_shots(gm: GainModel, path: RoundTripPath, seed, n_rt: int, period: f
         x, outs = run(x, EXTEND_SHOTS)
         p = classify(outs)
     return ShotSequence(p, outs, float(outs.mean()), float(outs.min()), float(outs.max()))
+
+
+def _iterate_tables(gm, path, seed, n_rt, period, transient, observe, extend_rounds) -> ShotSequence:
+    from regentime.physics import dynamics as dyn
+
+    nodes, top = 1025, (8193 if gm.grid.rings == 1 else 2049)
+    while True:
+        tb = dyn.build_tables(gm, path, float(np.asarray(seed).ravel()[0]), gm.pump_rate, [int(n_rt)], nodes=nodes)
+        if (tb.error_output <= 1e-6 and tb.error_remain <= 1e-8) or 2 * nodes - 1 > top:
+            break
+        nodes = 2 * nodes - 1
+    d, _ = dyn.recovery_factor(period, int(n_rt), path.dt, gm.tau)
+    orb = dyn.iterate_tables(tb, np.zeros(1, dtype=int), np.zeros(1, dtype=int), np.atleast_1d(d), transient,
+                             observe, PERIOD_REL_TOL, MAX_PERIOD, extend=EXTEND_SHOTS,
+                             extend_rounds=extend_rounds, keep=True)
+    outs = orb.observed[0]
+    return ShotSequence(int(orb.period[0]), outs, float(outs.mean()), float(outs.min()), float(outs.max()))

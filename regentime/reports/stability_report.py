@@ -172,17 +172,37 @@ def monte_carlo_text(mc) -> str:
                "the rms includes the alternation"))
 
 
+def _fast_lists(d: dict) -> dict:
+    """2-D float arrays to nested lists with null for NaN, without a per-element walk."""
+    out = {}
+    for k, v in d.items():
+        if isinstance(v, np.ndarray) and v.dtype.kind == "f":
+            obj = v.astype(object)
+            obj[~np.isfinite(v)] = None
+            out[k] = obj.tolist()
+        else:
+            out[k] = v
+    return out
+
+
 def stability_json(m, noise=None, mc=None, noise_rows=None) -> str:
     from regentime.reports.plan_json import _clean
 
-    out = m.to_dict()
+    big = _fast_lists({k: v for k, v in m.to_dict().items() if isinstance(v, np.ndarray)})
+    out = _clean({k: v for k, v in m.to_dict().items() if not isinstance(v, np.ndarray)})
     if noise is not None:
         out["noise_transfer"] = noise.to_dict(_noise_ns(noise, noise_rows if noise_rows is not None
                                                         else np.arange(1, noise.output.size)))
     if mc is not None:
         out["monte_carlo"] = mc.to_dict()
     out["cautions"] = [_caution()]
-    return json.dumps(_clean(out), indent=1, ensure_ascii=False)
+    out = _clean(out)
+    out.update(big)
+    order = ["axis", "rates_Hz", "seed_energies_J", "pump_power_W", "pump_energy_J", "round_trips", "period",
+             "energy_J", "energy_min_J", "energy_max_J"]
+    out = {**{k: out[k] for k in order if k in out}, **{k: v for k, v in out.items() if k not in order}}
+    indent = 1 if m.period.size <= 2000 else None  # a big map stays compact (and fast)
+    return json.dumps(out, indent=indent, ensure_ascii=False)
 
 
 def stability_csv(m, noise=None, mc=None, noise_rows=None) -> str:
