@@ -407,12 +407,14 @@ async def test_resize_to_small_terminal_keeps_working(cavity_file: Path) -> None
     async with app.run_test(size=(80, 24)) as pilot:
         await settle(app, pilot)
         assert app.screen.has_class("narrow") and app.screen.has_class("short")
+        assert not app.query_one("#editor").display  # results first on a narrow terminal
+        assert f"{app.plan.round_trip_time * 1e9:.4f} ns" in screen_text(app)
         await pilot.resize_terminal(160, 48)
         await pilot.pause()
         assert not app.screen.has_class("narrow") and app.screen.has_class("tall")
         await pilot.press("l", "v", "e", "n")
         await settle(app, pilot)
-        assert not app.query_one("#plot").log_scale
+        assert not app.query_one("#plot").log_scale and app.query_one("#editor").display
         await pilot.resize_terminal(40, 12)
         await pilot.pause()
         assert app.is_running

@@ -59,7 +59,7 @@ KEYS = [
     ("x", "export", "export", "Export the table (.md/.csv/.json) or the build-up plot (.png)",
      "x", True),
     ("r", "reload", "reload", "Reload the file from disk", "r", False),
-    ("e", "toggle_editor", "editor", "Show / hide the parameter editor", "e", False),
+    ("e", "toggle_editor", "editor", "Show / hide the parameter editor", "e", True),
     ("ctrl+q", "quit", "quit", "Quit (asks first when there are unsaved changes)", "^q", True),
 ]
 OTHER_KEYS = [
@@ -127,6 +127,10 @@ class PlannerApp(App[int]):
         self.query_one("#checks").border_title = "checks"
         self.query_one("#editor").border_title = "parameters"
         self._layout_classes()
+        if self.size.width < 100:  # results first on a narrow terminal; e brings the editor
+            self.query_one(ParameterEditor).display = False
+            self.notify("Narrow terminal: the parameter editor is hidden; e shows it, F1 helps.",
+                        timeout=6)
         if self.doc is None and self.path is not None:
             try:
                 self.doc = CavityDocument.load(self.path)

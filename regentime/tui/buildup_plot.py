@@ -116,8 +116,7 @@ class BuildupPlot(Widget, can_focus=True):
             for ch, st in row:
                 text.append(ch, style=st or None)
             text.append("\n")
-        if sens_h:
-            self._sensitivity(text, b, n_shown, xs, cw, sens_h)
+        legend = self._sensitivity(text, b, n_shown, xs, cw, sens_h) if sens_h else None
         # x axis
         axis = [" "] * cw
         for t in nice_ticks(0, n_shown, max(2, cw // 10)):
@@ -136,16 +135,20 @@ class BuildupPlot(Widget, can_focus=True):
         text.append(f" peak output after {n_peak}"[:w - 1])
         text.append(f"   x: round trip k, y: energy in the cavity ({scale_name})"[:max(0, w - 26)],
                     style="dim")
+        if legend is not None:
+            text.append("\n")
+            text.append_text(legend)
         return text
 
-    def _sensitivity(self, text: Text, b, n_shown: int, xs, cw: int, sens_h: int) -> None:
+    def _sensitivity(self, text: Text, b, n_shown: int, xs, cw: int, sens_h: int) -> Text:
+        """Draw the sensitivity strip into ``text``; returns its legend line."""
         sp = [float(x) for x in b.sensitivity_pump[:n_shown + 1]]
         ss = [float(x) for x in b.sensitivity_seed[:n_shown + 1]]
         finite = [abs(v) for v in sp + ss if math.isfinite(v)]
         lim = min(max(finite or [1.0]), 2.0) or 1.0  # clipped so the curve near the peak shows
-        canvas = Canvas(cw, sens_h - 1)  # the last row is the legend
+        canvas = Canvas(cw, sens_h - 1)  # the legend goes under the x axis
         zero = canvas.layer("dim")
-        for x in range(0, canvas.dots_x, 3):
+        for x in range(0, canvas.dots_x, 4):
             canvas.dot(zero, x, canvas.dots_y // 2)
         lp, ls = canvas.layer(S_SEED), canvas.layer(S_PUMP)
         clip = lambda v: max(-lim, min(lim, v)) if math.isfinite(v) else math.nan  # noqa: E731
@@ -161,9 +164,10 @@ class BuildupPlot(Widget, can_focus=True):
             text.append("\n")
         n = b.dump_round_trip
         show = lambda a: f"{float(a[n]):+.3f}" if n < len(a) and math.isfinite(a[n]) else "—"  # noqa: E731
-        text.append(" " * (_LEFT - 1) + " ")
-        text.append("pump", style=S_PUMP)
-        text.append(f" {show(b.sensitivity_pump)}  ")
-        text.append("seed", style=S_SEED)
-        legend = f" {show(b.sensitivity_seed)}  (d ln E_out / d ln x after {n})"
-        text.append(legend[:max(0, cw - 20)] + "\n")
+        legend = Text(no_wrap=True, overflow="crop")
+        legend.append("sensitivity ", style="dim")
+        legend.append("pump", style=S_PUMP)
+        legend.append(f" {show(b.sensitivity_pump)}  ")
+        legend.append("seed", style=S_SEED)
+        legend.append(f" {show(b.sensitivity_seed)}  (d ln E_out / d ln x after {n})"[:max(0, cw - 12)])
+        return legend
