@@ -56,7 +56,10 @@ def _setup(cavity: Cavity, optics=None):
 
 
 def _tables(gm, path, seeds, rates, n_values, max_nodes, nodes=1025):
-    """Tables whose midpoint error meets the tolerances (nodes doubled up to ``max_nodes``)."""
+    """Tables whose midpoint error meets the tolerances (nodes doubled up to ``max_nodes``;
+    at most 2049 for the ring model, whose table cost grows with the number of rings)."""
+    if gm.grid.rings > 1:
+        max_nodes = min(max_nodes, 2049)
     while True:
         tb = dyn.build_tables(gm, path, seeds, rates, n_values, nodes=nodes)
         good = tb.error_output <= _TABLE_TOL_OUTPUT and tb.error_remain <= _TABLE_TOL_REMAIN
