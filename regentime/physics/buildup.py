@@ -183,7 +183,7 @@ def _gain_pass(energy, j_st, gm: GainModel):
     return e_out, j_new
 
 
-def _apply(ops, energy, j_st, gm: GainModel, track: bool):
+def apply_ops(ops, energy, j_st, gm: GainModel, track: bool = False):
     """Apply ops; returns energy, stored fluence, largest peak fluence and B added."""
     peak = np.zeros_like(energy) if track else None
     b_add = np.zeros_like(energy) if track else None
@@ -228,12 +228,12 @@ def simulate_buildup(gm: GainModel, path: RoundTripPath, seed_energy, stored_ene
     b_total = np.zeros(shape)
     out_factor = path.reflection_s * path.switching_efficiency
     for k in range(1, n + 1):
-        energy, j_st, peak, b_add = _apply(path.ops, energy, j_st, gm, track)
+        energy, j_st, peak, b_add = apply_ops(path.ops, energy, j_st, gm, track)
         j_st = j_eq + (j_st - j_eq) * decay
         e_hist[k] = energy
         g_hist[k] = gm.log_gain(j_st)
         s_hist[k] = gm.stored_in(j_st)
-        e_out, _, peak_out, b_out = _apply(path.out_ops, energy, j_st, gm, track)
+        e_out, _, peak_out, b_out = apply_ops(path.out_ops, energy, j_st, gm, track)
         out_hist[k] = e_out * out_factor
         if track:
             b_total = b_total + b_add
@@ -261,11 +261,11 @@ def shot(gm: GainModel, path: RoundTripPath, seed_energy, j_st, n_round_trips, p
     out = np.zeros(batch)
     j_end = j_st.copy()
     for k in range(1, n_max + 1):
-        energy, j_st, _, _ = _apply(path.ops, energy, j_st, gm, False)
+        energy, j_st, _, _ = apply_ops(path.ops, energy, j_st, gm, False)
         j_st = j_eq + (j_st - j_eq) * decay
         done = n_arr == k
         if done.any():
-            e_out, j_after, _, _ = _apply(path.out_ops, energy[done], j_st[done], gm, False)
+            e_out, j_after, _, _ = apply_ops(path.out_ops, energy[done], j_st[done], gm, False)
             out[done] = e_out * path.reflection_s * path.switching_efficiency
             j_end[done] = j_after
     rest = np.maximum(period - n_arr * path.dt, 0.0)[..., None]
@@ -290,10 +290,13 @@ def shot_every_n(gm: GainModel, path: RoundTripPath, seed_energy, stored_energy,
     out = np.full((n_max + 1,) + x.shape, np.nan)
     nxt = np.full((n_max + 1,) + x.shape, np.nan)
     for k in range(1, n_max + 1):
-        energy, j_st, _, _ = _apply(path.ops, energy, j_st, gm, False)
+        energy, j_st, _, _ = apply_ops(path.ops, energy, j_st, gm, False)
         j_st = j_eq + (j_st - j_eq) * decay
-        e_out, j_after, _, _ = _apply(path.out_ops, energy, j_st, gm, False)
+        e_out, j_after, _, _ = apply_ops(path.out_ops, energy, j_st, gm, False)
         out[k] = e_out * path.reflection_s * path.switching_efficiency
         rest = max(period - k * path.dt, 0.0)
         nxt[k] = gm.stored_in(j_eq + (j_after - j_eq) * np.exp(-rest / gm.tau))
     return out, nxt
+
+
+_apply = apply_ops  # former private name, kept for callers written against it

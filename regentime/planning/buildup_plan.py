@@ -62,6 +62,20 @@ class BuildupPlan:
             return self.output_energy / per_shot if per_shot > 0 else 0.0
         return self.output_energy / self.stored_at_injection if self.stored_at_injection > 0 else 0.0
 
+    def with_switching_efficiency(self, efficiency: float) -> "BuildupPlan":
+        """The same plan with the outputs scaled by the switch's ejected share (η_switch only
+        multiplies E_out: the dump choice and the logarithmic sensitivities do not change)."""
+        factor = efficiency / self.path.switching_efficiency
+        if factor == 1.0:
+            return self
+        res = replace(self.result, output=self.result.output * factor)
+        shots = self.shots
+        if shots is not None:
+            shots = steady.ShotSequence(shots.period, shots.outputs * factor, shots.mean * factor,
+                                        shots.minimum * factor, shots.maximum * factor)
+        return replace(self, path=replace(self.path, switching_efficiency=efficiency), result=res,
+                       output=self.output * factor, shots=shots)
+
     @property
     def period(self) -> int:
         return 1 if self.shots is None else self.shots.period

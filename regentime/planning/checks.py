@@ -84,7 +84,7 @@ def run_checks(plan) -> list[Check]:
         out.append(Check("info", "b_integral", msg + "; above 1 rad contrast may suffer (common practice)"))
     else:
         out.append(Check("info", "b_integral", msg))
-    if b.continuous and b.shots is not None and b.shots.period != 1:
+    if b.continuous and b.shots is not None and b.shots.period != 1 and plan.stability is None:
         kind = "irregular" if b.shots.period == 0 else f"period {b.shots.period}"
         out.append(Check("warning", "stability",
                          f"the shot-to-shot steady state at N = {n} is {kind}: output between "

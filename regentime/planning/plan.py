@@ -54,45 +54,23 @@ class Plan:
 
 def make_plan(cavity: Cavity, dump: Union[str, int, None] = None) -> Plan:
     """Plan the cavity.  ``dump`` overrides the file's dump rule (``auto``, ``steady``, N)."""
+    from regentime.planning import contrast, stability, switching, timing
+
     if dump is not None:
         cavity = replace(cavity, dump=dump)
     optics = cavity_optics(cavity)
-    switching = None
-    switching_mod = _optional("regentime.planning.switching")
     buildup = plan_buildup(cavity, optics)
-    if switching_mod is not None:
-        switching = switching_mod.plan_switching(cavity, optics, buildup)
-        eff = getattr(switching, "switching_efficiency", 1.0)
-        if eff != 1.0:
-            buildup = plan_buildup(cavity, optics, switching_efficiency=eff)
-            if buildup.dump_round_trip != switching.dump_round_trip:  # keep the windows on the same N
-                switching = switching_mod.plan_switching(cavity, optics, buildup)
-    plan = Plan(cavity, optics, buildup, switching)
-    timing_mod = _optional("regentime.planning.timing")
-    if timing_mod is not None and switching is not None:
-        plan.timing = timing_mod.timing_table(cavity, optics, buildup, switching)
-    contrast_mod = _optional("regentime.planning.contrast")
-    if contrast_mod is not None and switching is not None:
-        plan.contrast = contrast_mod.plan_contrast(cavity, optics, buildup, switching)
-        if plan.timing is not None:  # the cleaner's gate row, if the file has a cleaner
-            plan.timing.rows.extend(getattr(plan.contrast, "timing_rows", None) or ())
-    stability_mod = _optional("regentime.planning.stability")
-    if stability_mod is not None and cavity.pump.mode == "continuous":
-        plan.stability = stability_mod.plan_stability_note(cavity, optics, buildup)
+    switch_plan = switching.plan_switching(cavity, optics, buildup)
+    # the ejected share scales every output alike: the dump choice and the sensitivities stay
+    buildup = buildup.with_switching_efficiency(getattr(switch_plan, "switching_efficiency", 1.0))
+    plan = Plan(cavity, optics, buildup, switch_plan)
+    plan.timing = timing.timing_table(cavity, optics, buildup, switch_plan)
+    plan.contrast = contrast.plan_contrast(cavity, optics, buildup, switch_plan)
+    plan.timing.rows.extend(getattr(plan.contrast, "timing_rows", None) or ())  # cleaner gate, if any
+    if cavity.pump.mode == "continuous":
+        plan.stability = stability.plan_stability_note(cavity, optics, buildup)
     plan.checks = run_checks(plan)
     return plan
-
-
-def _optional(name: str):
-    """Import a planning stage that may not be written yet (returns None if it is absent)."""
-    import importlib
-
-    try:
-        return importlib.import_module(name)
-    except ModuleNotFoundError as exc:
-        if exc.name == name:
-            return None
-        raise
 
 
 __all__ = ["Plan", "make_plan", "Check", "CAUTION", "CAUTION_SHORT"]
