@@ -203,7 +203,10 @@ class PlannerApp(App[int]):
         if self.input_problems:
             text = "⚠ input refused, showing the last valid plan  |  " + text
         bar.set_class(bool(self.input_problems), "stale")
-        bar.update(text)
+        if text != str(bar.content):
+            key = (self.size.width, len(text) // max(1, self.size.width - 2))
+            bar.update(text, layout=key != getattr(self, "_summary_key", None))
+            self._summary_key = key
 
     # ---- planning --------------------------------------------------------------------------
     def request_plan(self) -> None:

@@ -9,7 +9,6 @@ from __future__ import annotations
 from typing import Optional
 
 from textual.app import ComposeResult
-from textual.containers import Horizontal
 from textual.message import Message
 from textual.widget import Widget
 from textual.widgets import Input, Label, Static
@@ -19,14 +18,14 @@ class FieldRow(Widget):
     """``key  [value      ]`` on one line; the reason below it when the value is refused."""
 
     DEFAULT_CSS = """
-    FieldRow { height: auto; }
-    FieldRow > Horizontal { height: 1; }
+    FieldRow { height: auto; layout: grid; grid-size: 2; grid-columns: 17 1fr; grid-rows: 1; }
     FieldRow .key { width: 17; color: $text-muted; text-overflow: ellipsis; text-wrap: nowrap; }
     FieldRow Input { height: 1; border: none; padding: 0 1; width: 1fr; }
     FieldRow Input:focus { border: none; background: $boost; }
     FieldRow.bad Input { background: $error 35%; }
     FieldRow.bad .key { color: $error; text-style: bold; }
-    FieldRow .reason { color: $error; display: none; height: auto; padding: 0 0 0 2; }
+    FieldRow .reason { color: $error; display: none; height: auto; padding: 0 0 0 2;
+        column-span: 2; }
     FieldRow.bad .reason { display: block; }
     """
 
@@ -50,12 +49,11 @@ class FieldRow(Widget):
         self.reason: Optional[str] = None
 
     def compose(self) -> ComposeResult:
-        with Horizontal():
-            yield Label(self.label, classes="key")
-            box = Input(self._value, placeholder=self._placeholder, compact=True)
-            if self._tooltip:
-                box.tooltip = self._tooltip
-            yield box
+        yield Label(self.label, classes="key")
+        box = Input(self._value, placeholder=self._placeholder, compact=True)
+        if self._tooltip:
+            box.tooltip = self._tooltip
+        yield box
         yield Static("", classes="reason")
 
     @property

@@ -70,7 +70,7 @@ def switching_lines(plan) -> list[str]:
             continue
         a, b = (_f(win[0]), _f(win[1])) if len(win) == 2 else (None, None)
         w = (b - a) if a is not None and b is not None else None
-        lines.append(f"{label} edge {ns(edge)}  window {ns(a)} … {ns(b)} (width {ns(w)})")
+        lines.append(f"{label} edge {ns(edge)}, window {ns(a)[:-3]} … {ns(b)} ({ns(w)})")
     sigma = _f(getattr(s, "margin_sigma", None))
     raw_sigma = getattr(s, "margin_sigma", None)
     if sigma is not None:
