@@ -71,24 +71,9 @@ def parse_span(text: str) -> float:
     return float(value)
 
 
-def _dump(text):
-    if text is None:
-        return None
-    if text in ("auto", "steady"):
-        return text
-    from regentime.errors import InputError
-
-    try:
-        n = int(text)
-    except ValueError:
-        raise InputError("--dump", text, "auto, steady or a round trip number ≥ 1") from None
-    if n < 1:
-        raise InputError("--dump", text, "a round trip number ≥ 1")
-    return n
-
-
 def run(args: argparse.Namespace) -> int:
     from regentime.errors import PlanError
+    from regentime.commands.loading import parse_dump
     from regentime.fileformat import load_cavity
     from regentime.planning.contrast import plan_contrast, required_for_target
     from regentime.planning.plan import make_plan
@@ -97,7 +82,7 @@ def run(args: argparse.Namespace) -> int:
     target = parse_ratio(args.target) if args.target is not None else None
     span = parse_span(args.span) if args.span is not None else None
     cavity = load_cavity(args.file)
-    plan = make_plan(cavity, dump=_dump(args.dump))
+    plan = make_plan(cavity, dump=parse_dump(args.dump))
     if plan.contrast is None or span is not None:  # absent switching stage: ideal switching
         plan.contrast = plan_contrast(cavity, plan.optics, plan.buildup, plan.switching, span=span)
     targets = None
