@@ -43,7 +43,7 @@ FWHM_PER_SIGMA = 2.0 * math.sqrt(2.0 * math.log(2.0))
 SLICE_SPAN = 4.5  # sigmas each side (tails beyond: 2 * Q(4.5) = 6.8e-6 of the energy)
 SLICES = 81
 THRESHOLD = 0.99  # DESIGN.md: at least 99 % of an ideal instant switch
-_GRID = 800  # grid points of the window search
+_GRID = 300  # grid points of the window search (edges then refined; finds windows ≳ 0.1 ns)
 _BISECT_TOL = 0.05e-12  # s, window edges refined to 0.05 ps (well below any generator step)
 
 
@@ -220,13 +220,33 @@ def find_window(ev: SwitchEvent, rise: float, shape: str, fwhm: float,
     while hi < t.size - 1 and ok[hi + 1]:
         hi += 1
 
-    def f(x: float) -> float:
-        return float(event_share(ev, x, rise, shape, fwhm)[0]) - target
+    def f(x):
+        return event_share(ev, x, rise, shape, fwhm) - target
 
-    start = t[lo] if lo == 0 else _bisect(f, t[lo - 1], t[lo])
-    end = t[hi] if hi == t.size - 1 else _bisect(f, t[hi + 1], t[hi])
+    start = t[lo] if lo == 0 else _refine(f, t[lo - 1], t[lo])
+    end = t[hi] if hi == t.size - 1 else _refine(f, t[hi + 1], t[hi])
     return WindowResult((float(start), float(end)), ideal, nominal, float(s[i_best]),
                         float(t[i_best]), threshold, (t, s))
+
+
+_REFINE_POINTS = 48  # per refinement stage: 48² ≈ 2300-fold narrowing in two vectorised calls
+
+
+def _refine(f, bad: float, good: float) -> float:
+    """Boundary between ``bad`` (f < 0) and ``good`` (f ≥ 0) to ``_BISECT_TOL``, by evaluating
+    the vectorised ``f`` on a fine grid of the bracket and keeping the crossing cell (each
+    stage narrows the bracket ``_REFINE_POINTS − 1`` times; same answer as bisection)."""
+    for _ in range(8):
+        if abs(good - bad) <= _BISECT_TOL:
+            break
+        x = np.linspace(bad, good, _REFINE_POINTS)
+        ok = np.asarray(f(x)) >= 0.0
+        ok[-1] = True  # ``good`` is good by construction
+        i = int(np.argmax(ok))  # first good point from the bad side
+        if i == 0:  # pragma: no cover - ``bad`` is bad by construction
+            return float(bad)
+        bad, good = float(x[i - 1]), float(x[i])
+    return good
 
 
 def _bisect(f, bad: float, good: float) -> float:
