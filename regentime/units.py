@@ -22,7 +22,6 @@ Public API: :func:`parse_quantity`, :func:`format_quantity`, :data:`DIMENSIONS`,
 
 from __future__ import annotations
 
-import difflib
 import math
 import re
 import unicodedata
@@ -194,6 +193,8 @@ def parse_unit(unit: str) -> tuple[float, tuple[int, ...]] | None:
 def _suggest(unit: str, dimension: str) -> str:
     common = DIMENSIONS[dimension].common
     exact = [c for c in common if c.lower() == unit.lower()]
+    import difflib  # only when a suggestion is needed (start-up time)
+
     picks = exact or difflib.get_close_matches(unit, common, n=2, cutoff=0.5)
     if not picks:
         return ""

@@ -11,7 +11,6 @@ the value and what was expected.  A YAML syntax error, an empty or binary file s
 
 from __future__ import annotations
 
-import difflib
 import hashlib
 import math
 import os
@@ -216,6 +215,8 @@ def _join(path: str, key: Any) -> str:
 
 
 def _suggest(word: str, options) -> str:
+    import difflib  # only when a suggestion is needed (start-up time)
+
     close = difflib.get_close_matches(str(word), [str(o) for o in options], n=1, cutoff=0.6)
     if not close:
         close = [o for o in options if str(o).lower() == str(word).lower().replace("-", "_")]
