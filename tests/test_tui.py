@@ -427,3 +427,28 @@ def test_view_shows_not_available_for_missing_stages() -> None:
     assert view.generator_table(plan) is None
     assert view.NOT_YET in view.switching_lines(plan)[0]
     assert view.NOT_YET in view.contrast_lines(plan)[0]
+
+
+async def test_stability_map_marks_the_setting(tmp_path: Path) -> None:
+    """The map is the stability module's local_map around the plan's N and rate."""
+    target = tmp_path / "cw.yaml"
+    shutil.copyfile(ROOT / "cavities" / "yb_100khz_cw.yaml", target)
+    app = PlannerApp(path=str(target), watch_interval=0)
+    async with app.run_test(size=(120, 48)) as pilot:
+        await settle(app, pilot)
+        await pilot.press("m")
+        await pilot.pause()
+        screen = app.screen
+        for _ in range(200):
+            if screen.map is not None:
+                break
+            await pilot.pause(0.05)
+        m = screen.map
+        assert m is not None and m.file_point is not None
+        i, j = m.file_point
+        assert m.round_trips[i] == app.plan.dump_round_trip
+        assert m.rates_Hz[j] == pytest.approx(app.plan.cavity.repetition_rate)
+        assert "◉" in str(screen.query_one("#map").content)
+        await pilot.press("escape")
+        await pilot.pause()
+        assert screen is not app.screen

@@ -54,6 +54,8 @@ KEYS = [
      "Show / hide the output's sensitivity to pump and seed", "v", True),
     ("n", "toggle_notes", "notes", "Show / hide the notes under the generator table's rows",
      "n", False),
+    ("m", "stability_map", "stability", "Stability map around the setting (period per round trip "
+     "and repetition rate, the setting marked)", "m", False),
     ("ctrl+s", "save", "save", "Save the cavity file (comments and key order kept)", "^s", True),
     ("f2", "save_as", "save as", "Save the cavity file under another name", "F2", False),
     ("x", "export", "export", "Export the table (.md/.csv/.json) or the build-up plot (.png)",
@@ -448,6 +450,15 @@ class PlannerApp(App[int]):
     def action_toggle_sensitivity(self) -> None:
         plot = self.query_one(BuildupPlot)
         plot.show_sensitivity = not plot.show_sensitivity
+
+    def action_stability_map(self) -> None:
+        if self.plan is None:
+            self.notify("no valid plan yet", severity="warning")
+            return
+        from regentime.tui.stability_screen import StabilityScreen
+
+        self.push_screen(StabilityScreen(self.plan.cavity, self.plan.dump_round_trip,
+                                         self.plan.optics))
 
     def action_toggle_notes(self) -> None:
         panel = self.query_one(TimingPanel)

@@ -33,6 +33,9 @@ REGIONS = (
     ("checks", "damage fluence and intensity, B-integral, gain, windows and timing problems: "
                "errors first (✗), then warnings (!), then notes (·)."),
     ("caution", "the safety reminder; the full text is below."),
+    ("stability map (m)", "the shot-to-shot period for round trips N ± 20 and the repetition "
+                          "rate ± 50 % around the setting, the setting marked ◉; period 2 and "
+                          "beyond mean alternating or irregular output energies."),
 )
 
 
