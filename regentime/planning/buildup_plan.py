@@ -24,7 +24,7 @@ from regentime.planning import steady
 from regentime.planning.gainsetup import gain_model, round_trip_path
 
 _DELTA = 1e-3  # relative step of the sensitivity differences (well above rounding, well below curvature)
-_FIRST_SPAN = 400  # round trips simulated first; doubled while the peak sits near the end
+_FIRST_SPAN = 64  # round trips simulated first; doubled while the peak sits near the end
 _MAX_SPAN = 6400
 
 
@@ -236,7 +236,8 @@ def plan_buildup(cavity: Cavity, optics: CavityOptics, switching_efficiency: flo
             res, output, s_pump, s_seed = _pulsed(cavity, gm, path, n)
             n_fit = n
         peak = int(np.nanargmax(np.where(np.arange(output.size) >= 1, output, np.nan)))
-        if peak < 0.8 * n_fit or n >= _MAX_SPAN or n_fit < n:
+        past_plateau = not output[-1] >= 0.9 * output[peak]  # every N within 90 % is seen
+        if (peak < 0.8 * n_fit and past_plateau) or n >= _MAX_SPAN or n_fit < n:
             break
         n *= 2
     n_top = output.size - 1
