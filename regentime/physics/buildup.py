@@ -51,6 +51,13 @@ class GainModel:
     length: float = 0.0
     wavelength: float = 800e-9
     pulse_duration: float = 100e-12
+    relax_in_buildup: bool = True  # continuous pump: recover over each T_rt (DESIGN.md); pulsed: no
+
+    def buildup_decay(self, dt: float) -> float:
+        """Factor e^{−Δ/τ} applied to (E_st − Rτ) after each round trip of the build-up (1 when
+        the stored energy is held constant during the build-up, as the design defines it for a
+        pulsed pump)."""
+        return float(np.exp(-dt / self.tau)) if self.relax_in_buildup else 1.0
 
     @property
     def area(self) -> float:
@@ -216,7 +223,7 @@ def simulate_buildup(gm: GainModel, path: RoundTripPath, seed_energy, stored_ene
     energy = np.broadcast_to(seed_energy * path.reflection_s, shape).astype(float)
     j_st = gm.stored_fluence(np.broadcast_to(stored_energy, shape))
     j_eq = gm.stored_fluence(gm.pump_rate * gm.tau) if np.any(gm.pump_rate) else 0.0
-    decay = np.exp(-path.dt / gm.tau)
+    decay = gm.buildup_decay(path.dt)
     n = int(n_round_trips)
     e_hist = np.empty((n + 1,) + shape)
     out_hist = np.full((n + 1,) + shape, np.nan)

@@ -23,7 +23,7 @@ import math
 
 import numpy as np
 
-from regentime.physics.buildup import GainModel, _apply
+from regentime.physics.buildup import GainModel, apply_ops as _apply
 
 _RAMP_10_90 = 0.8  # a linear ramp's 10-90 % time is 0.8 of its 0-100 % time
 
@@ -117,3 +117,12 @@ def decibels(r: float) -> float:
     if math.isinf(r):
         return math.inf
     return 10.0 * math.log10(r) if r > 0 else -math.inf
+
+
+def relax_round_trip(j_st, gm: GainModel, dt: float):
+    """Stored fluence after one round trip of the build-up (or of a post-pulse): the recovery
+    law with a continuous pump, held constant with a pulsed one — the same rule as the build-up
+    (:meth:`regentime.physics.buildup.GainModel.buildup_decay`)."""
+    if not gm.relax_in_buildup:
+        return np.asarray(j_st, dtype=float)
+    return relax(j_st, gm, dt)

@@ -281,7 +281,7 @@ def _history(cavity: Cavity, buildup, t_inj: float, t_ca: float) -> _History:
     for _ in range(n):
         backs.append(pc.follow(path.out_ops, e, j, gm)[0])
         e, j = pc.follow(path.ops, e, j, gm)
-        j = pc.relax(j, gm, path.dt)
+        j = pc.relax_round_trip(j, gm, path.dt)
         energies.append(e)
         js.append(j)
     back_n, j_after = pc.follow(path.out_ops, e, j, gm)
@@ -356,7 +356,7 @@ def _post_pulses(cavity, optics, buildup, switching, sh: Shares, hist: _History,
             break
         x, j = pc.follow(rest_ops, x, j, gm)
         back, j = pc.follow(path.out_ops, x, j, gm)
-        j = pc.relax(j, gm, trt)
+        j = pc.relax_round_trip(j, gm, trt)
         e = back * sh.off_out
         if i == 1 or e >= POST_FLOOR * main:
             out.append(Satellite("post", i, i * trt, hist.t_out + i * trt, e, pc.ratio(main, e)))

@@ -21,7 +21,9 @@ def crystal(cavity: Cavity) -> GainElement:
 def gain_model(cavity: Cavity, pump_scale: float = 1.0) -> GainModel:
     """Gain model of the cavity: J_sat, J_tr, τ, rings, stored energy at injection, pump rate.
 
-    Pulsed pump: the stored energy at injection per DESIGN.md (decayed over ``lead``).
+    Pulsed pump: the stored energy at injection per DESIGN.md (decayed over ``lead``), then held
+    during the build-up (only extraction lowers it; the design's definition — the decay over a
+    build-up of N·T_rt ≪ τ is left out, see docs/physics.md).
     Continuous pump: the start value is the equilibrium Rτ (full storage) and ``pump_rate``
     is R; the steady state across shots is found in :mod:`regentime.planning.steady`.
     ``pump_scale`` multiplies the pump energy or power (used for sensitivities).
@@ -42,7 +44,7 @@ def gain_model(cavity: Cavity, pump_scale: float = 1.0) -> GainModel:
         stored = rate * tau
     return GainModel(j_sat=j_sat, j_tr=j_tr, tau=tau, grid=grid, stored_energy=float(stored),
                      pump_rate=float(rate), n2=m.n2, length=xtal.length, wavelength=lam,
-                     pulse_duration=cavity.seed.duration)
+                     pulse_duration=cavity.seed.duration, relax_in_buildup=p.mode == "continuous")
 
 
 def round_trip_path(cavity: Cavity, optics: CavityOptics, switching_efficiency: float = 1.0) -> RoundTripPath:

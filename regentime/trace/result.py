@@ -119,7 +119,7 @@ def inputs_from_plan(plan) -> BuildupInputs:
         elif trans < 1.0:
             ops.append(float(np.log(op) / np.log(trans)))
     g_eq = float(gm.log_gain(gm.stored_fluence(gm.pump_rate * gm.tau))) if gm.tau > 0 else 0.0
-    decay = float(np.exp(-t_rt / gm.tau)) if gm.tau > 0 else 1.0
+    decay = gm.buildup_decay(t_rt) if gm.tau > 0 else 1.0  # same law as the core build-up
     grid = gm.grid
     rings = None
     if grid.rings > 1:
