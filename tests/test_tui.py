@@ -257,7 +257,13 @@ async def test_help_screen_lists_every_key_and_the_caution() -> None:
         await pilot.press("f1")
         await pilot.pause()
         assert isinstance(app.screen, HelpScreen)
-        body = " ".join(screen_text(app).split())
+        import io
+
+        from rich.console import Console
+
+        console = Console(width=100, file=io.StringIO(), record=True)
+        console.print(app.screen.query_one("#help-keys").content)
+        body = " ".join(console.export_text().split())
         for _, _, _, description, _, _ in KEYS:
             assert description in body
         assert "IEC 60825-1" in CAUTION
