@@ -67,7 +67,7 @@ def table_rows(plan) -> list[list[str]]:
     return rows
 
 
-_HEAD = ["output", "drives", "delay", "width", "event at", "status"]
+TABLE_HEAD = ["output", "drives", "delay", "width", "event at", "status"]  # public: the TUI shows the same table
 
 
 def window_lines(plan) -> list[str]:
@@ -156,7 +156,7 @@ def setup_card_text(plan, when: Optional[_dt.datetime] = None) -> str:
         res = cav.generator.resolution
         lines += ["", "DELAY GENERATOR (time zero = trigger input" +
                   (f"; rounded to {res * 1e12:.4g} ps)" if res else ")"),
-                  text_table(_HEAD, table_rows(plan), align="llrrrl"), ""]
+                  text_table(TABLE_HEAD, table_rows(plan), align="llrrrl"), ""]
         for r in plan.timing.rows:
             lines += _wrap(f"{r.output}: {r.note}")
             if r.problem:
@@ -188,7 +188,7 @@ def setup_card_md(plan, when: Optional[_dt.datetime] = None) -> str:
         lines += ["", "## Delay generator", "",
                   "Time zero = the generator's trigger input" +
                   (f"; delays rounded to {res * 1e12:.4g} ps." if res else "."), "",
-                  md_table(_HEAD, table_rows(plan), align="llrrrl"), ""]
+                  md_table(TABLE_HEAD, table_rows(plan), align="llrrrl"), ""]
         for r in plan.timing.rows:
             lines.append(f"- **{r.output}**: {r.note}" + (f" — **cannot be met: {r.problem}**" if r.problem else ""))
     if plan.switching is not None:

@@ -113,7 +113,7 @@ def generator_table(plan) -> Optional[TableView]:
 
     rows = list(getattr(plan.timing, "rows", []) or [])
     card = _setup_card()
-    head = getattr(card, "TABLE_HEAD", None) or getattr(card, "_HEAD", None)
+    head = card.TABLE_HEAD
     if card is not None and head is not None and hasattr(card, "table_rows"):
         lines = text_table(head, card.table_rows(plan), align="llrrrl", indent="").split("\n")
         source = "setup card"
