@@ -235,3 +235,64 @@ def test_random_edits_change_one_line_each():
         assert len(removed) == len(added) <= 1, (path, value)
         assert doc.get_si(path) == pytest.approx(value, rel=1e-5)
         doc.to_cavity()  # still a valid file
+
+
+def test_delete_block_key_removes_its_line_only(doc):
+    before = doc.text()
+    assert doc.delete("pump.latency") is True
+    removed, added = _diff(before, doc.text())
+    assert removed == ["  latency: 210 ns             # pump trigger input to pump light out"]
+    assert added == [] and doc.dirty
+    # the schema's default for pump.latency is "0 s" (docs/file-format.md)
+    assert doc.to_cavity().pump.latency == 0.0
+    doc.set("pump.latency", "210 ns")  # typed back: the same place, without the comment
+    removed, added = _diff(before, doc.text())
+    assert added == ["  latency: 210 ns"] and removed[0].startswith("  latency: 210 ns ")
+
+
+def test_delete_flow_keys(doc):
+    before = doc.text()
+    doc.delete("cavity[6].polarizer.transmission_p")  # a middle key and its comma
+    doc.delete("cavity[0].mirror.name")  # the first key
+    doc.delete("cables.pump.velocity_factor")  # the last key, after the kind lookup
+    removed, added = _diff(before, doc.text())
+    assert added == ["  - mirror: {reflectivity: 99.8 %}     # cell-side end mirror",
+                     "  - polarizer: {name: tfp, extinction_ratio: 500, reflection_s: 99.5 %}",
+                     "  pump:       {length: 3 m}"]
+    assert len(removed) == 3
+    c = doc.to_cavity()
+    assert c.elements[6].transmission_p == 1.0  # default "100 %" (file-format.md)
+    assert c.cables["pump"].velocity_factor == pytest.approx(0.66)  # default 0.66 (schema)
+
+
+def test_delete_section_and_crlf(tmp_path):
+    text = open(TI, encoding="utf-8").read().replace("\n", "\r\n")
+    doc = CavityDocument.from_text(text)
+    doc.delete("generator")
+    removed, added = _diff(text.replace("\r\n", "\n"), doc.text().replace("\r\n", "\n"))
+    assert removed[0] == "generator:" and len(removed) == 2 and added == []
+    assert "\n" not in doc.text().replace("\r\n", "")
+    doc.to_cavity()
+
+
+def test_delete_refusals_change_nothing(doc):
+    before = doc.text()
+    for path in ("seed.energy", "cavity[1].length", "cavity[2].pockels_cell", "cavity[2]",
+                 "pump.enrgy"):
+        with pytest.raises(InputError):
+            doc.delete(path)
+    assert doc.delete("seed.bandwidth") is False  # not in the file: nothing to do
+    assert doc.text() == before and not doc.dirty
+
+
+def test_snapshot_builds_the_same_cavity_as_the_loader(doc):
+    """cavity_of(snapshot) and load_cavity_text (the path `regentime plan` takes) agree, and an
+    edit leaves an earlier snapshot as it was (the TUI plans it in another thread)."""
+    from regentime.fileformat.document import cavity_of
+    from regentime.fileformat.loader import load_cavity_text
+
+    text, data = doc.snapshot()
+    doc.set("pump.energy", "7 mJ")
+    assert doc.snapshot()[0] != text and data["pump"]["energy"] == "9 mJ"
+    assert cavity_of(text, data, TI) == load_cavity_text(text, TI)
+    assert doc.to_cavity() == load_cavity_text(doc.text(), TI)

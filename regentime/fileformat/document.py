@@ -19,7 +19,7 @@ from typing import Any, Optional
 
 from regentime.errors import InputError
 from regentime.fileformat.loader import (
-    _yaml, check_value, decode, load_cavity_text, read_bytes, read_yaml)
+    _depth_check, _yaml, check_value, decode, load_cavity_text, read_bytes, read_yaml)
 from regentime.fileformat.schema import ELEMENTS, FieldSpec, field_spec
 from regentime.units import DIMENSIONS, format_quantity
 
@@ -66,7 +66,13 @@ class CavityDocument:
 
     def to_cavity(self):
         """Check the whole document and build the Cavity (raises InputErrors)."""
-        return load_cavity_text(self._text, self.source)
+        return cavity_of(*self.snapshot(), self.source)
+
+    def snapshot(self) -> tuple[str, Any]:
+        """(text, parsed data) as they are now.  Edits replace both, never change them, so the
+        pair may be handed to another thread (the TUI plans in a worker) while editing goes on.
+        """
+        return self._text, self._data
 
     def save(self, path: Optional[str] = None) -> str:
         """Write atomically (temporary file + rename, symlinks followed, permissions kept).
@@ -129,6 +135,65 @@ class CavityDocument:
         scalar, python = self._scalar(value, spec, path, self.get(path))
         check_value(python, spec, path)
         self._edit(lambda: self._set_text(parts, scalar))
+
+    def delete(self, path: str) -> bool:
+        """Remove one key and its value, so that the file's default (or the library's value)
+        applies again.  Returns False when the key is not in the file (nothing to do).
+
+        Only that key's text goes: in a block mapping its line(s), a comment on the same line
+        included; in a flow mapping ``key: value`` and one separating comma.  Comments on lines
+        of their own and everything else stay byte for byte.  Refused with :class:`InputError`
+        (the document unchanged): a required key, an element's kind or a list item (use
+        :meth:`remove_element`), the length written as a shorthand (``- space: 250 mm``) and a
+        key that shares its line with a list dash.  Removing the last key of a section leaves
+        the section's key with no value, which the loader reads as an empty section.
+        """
+        from ruamel.yaml.nodes import MappingNode, ScalarNode, SequenceNode
+
+        parts = self._resolve(path)
+        if isinstance(parts[-1], int) or (len(parts) >= 2 and isinstance(parts[-2], int)):
+            raise InputError(path, path, "a key inside an element (remove a whole element "
+                             "with remove_element)")
+        spec = self.spec(path)
+        if self.get(path) is None:
+            return False
+        if spec.required:
+            raise InputError(path, "", "a value: this key is required, so it cannot be removed")
+        node, mapping, index = self._root, None, -1
+        for i, part in enumerate(parts):
+            if isinstance(part, int):
+                if not isinstance(node, SequenceNode) or part >= len(node.value):
+                    return False  # pragma: no cover - get() found it
+                node = node.value[part]
+                continue
+            if isinstance(node, ScalarNode):  # "- space: 250 mm": the shorthand's length
+                raise InputError(path, self.get(path), "a key written as 'key: value' (this "
+                                 "value is the element's shorthand; edit it instead)")
+            if not isinstance(node, MappingNode):  # pragma: no cover - get() found it
+                return False
+            index = next((j for j, (k, _) in enumerate(node.value) if k.value == part), -1)
+            if index < 0:  # pragma: no cover - get() found it
+                return False
+            mapping, node = node, node.value[index][1]
+        key, value = mapping.value[index]
+        if mapping.flow_style:
+            pairs = mapping.value
+            if index + 1 < len(pairs):  # "a: 1, b: 2, c: 3" -> "a: 1, c: 3"
+                start, end = key.start_mark.index, pairs[index + 1][0].start_mark.index
+            elif index > 0:  # the last one: from the end of the value before it
+                start, end = pairs[index - 1][1].end_mark.index, value.end_mark.index
+            else:  # the only one: "{}"
+                start, end = key.start_mark.index, value.end_mark.index
+        else:
+            start = self._line_start(key.start_mark.index)
+            if self._text[start:key.start_mark.index].strip():
+                raise InputError(path, path, "a key on a line of its own (this one shares its "
+                                 "line with a list dash; edit the file)")
+            last = _deepest_end(value)
+            end = last if self._text[last - 1:last] == "\n" and last > key.end_mark.index \
+                else self._line_end(last)
+        self._edit(lambda: self._replace(start, end, ""))
+        return True
 
     def insert_element(self, index: int, kind: str, fields: Optional[dict] = None) -> None:
         """Insert ``- kind: {fields}`` so that it becomes ``cavity[index]``."""
@@ -239,8 +304,19 @@ class CavityDocument:
 
     # ---- internals: text edits -----------------------------------------------------------
     def _reparse(self, text: str) -> None:
-        data = read_yaml(text, self.source)
-        root = _yaml().compose(text)
+        """Parse once: compose the node tree (its marks locate every edit) and construct the
+        data from it, as ruamel's ``load`` does (compose, then construct).  Any problem is
+        reported by the loader's own :func:`read_yaml`, so messages match ``regentime plan``.
+        """
+        try:
+            yaml = _yaml()
+            root = yaml.compose(text)
+            data = None if root is None else yaml.constructor.construct_document(root)
+        except Exception:  # noqa: BLE001 - let the loader name the problem
+            data = read_yaml(text, self.source)  # raises with the line and the reason
+            root = _yaml().compose(text)
+        else:
+            _depth_check(data, self.source)
         self._text, self._data, self._root = text, data, root
 
     def _edit(self, fn) -> None:
@@ -358,6 +434,22 @@ class CavityDocument:
             if at == len(self._text) and not self._text.endswith("\n"):
                 new = self._nl + new
         return self._replace(at, at, new)
+
+
+def cavity_of(text: str, data: Any, source: Optional[str] = None):
+    """The Cavity that ``load_cavity_text(text, source)`` builds, from ``data`` already parsed
+    from ``text`` (a :meth:`CavityDocument.snapshot`): the same checks and the same content
+    hash, without parsing the YAML again.  Raises InputError / InputErrors."""
+    from dataclasses import replace
+
+    from regentime.fileformat.build import validate
+    from regentime.fileformat.loader import MAX_BYTES, _content_hash, _stem
+
+    raw = text.encode("utf-8")
+    if len(raw) > MAX_BYTES or "\x00" in text:
+        return load_cavity_text(text, source)  # raises the loader's message
+    cavity = validate(data, source, _stem(source))
+    return replace(cavity, source=source, content_hash=_content_hash(raw))
 
 
 def _join(parts: list) -> str:
