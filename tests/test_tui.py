@@ -458,3 +458,55 @@ async def test_stability_map_marks_the_setting(tmp_path: Path) -> None:
         await pilot.press("escape")
         await pilot.pause()
         assert screen is not app.screen
+
+
+async def test_emptying_an_optional_box_removes_the_key(cavity_file: Path) -> None:
+    original = cavity_file.read_text()
+    app = PlannerApp(path=str(cavity_file), watch_interval=0)
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(app, pilot)
+        await type_into(app, pilot, "pump.latency", "")  # select all, then nothing typed
+        row = app.query_one("#editor").row("pump.latency")
+        await pilot.press("backspace")
+        await settle(app, pilot)
+        assert app.doc.get("pump.latency") is None and not row.has_class("bad")
+        assert row.input.placeholder == "default: 0 s"  # the schema's default applies again
+        removed = [d for d in difflib.ndiff(original.splitlines(), app.doc.text().splitlines())
+                   if d[:1] in "+-"]
+        assert removed == ["-   latency: 210 ns             # pump trigger input to pump light out"]
+        assert app.modified
+        # the plan on screen is the one `regentime plan` makes of the new text
+        ref = reference_plan(app.doc.text())
+        pump = next(r for r in ref.timing.rows if r.drives == "pump")
+        assert f"{pump.delay * 1e9:.3f} ns" in timing_text(app)
+        # a required key refuses, with the reason, and the file keeps it
+        await type_into(app, pilot, "seed.energy", "")
+        seed = app.query_one("#editor").row("seed.energy")
+        await pilot.press("backspace")
+        await settle(app, pilot)
+        assert seed.has_class("bad") and "required" in seed.reason
+        assert app.doc.get("seed.energy") == "2 nJ"
+
+
+async def test_gain_rows_show_the_library_values(cavity_file: Path) -> None:
+    from regentime.materials.gain_media import GAIN_MEDIA
+
+    app = PlannerApp(path=str(cavity_file), watch_interval=0)
+    async with app.run_test(size=SIZE) as pilot:
+        await settle(app, pilot)
+        editor = app.query_one("#editor")
+        hint = editor.row("gain.emission_cross_section").input.placeholder
+        assert hint == "library: 3e-19 cm²"
+        # the library's Ti:sapphire value lies in the published range 2.8-4.1e-19 cm²
+        # (P. F. Moulton, J. Opt. Soc. Am. B 3, 125 (1986), as quoted in the library's source)
+        sigma = GAIN_MEDIA["ti_sapphire"].emission_cross_section
+        assert 2.8e-23 <= sigma <= 4.1e-23
+        assert editor.row("gain.upper_state_lifetime").input.placeholder == "library: 3.2 µs"
+        assert editor.row("seed.bandwidth").input.placeholder == "e.g. 30 nm"
+        assert editor.row("gain.pump_radius").input.placeholder == "default: 0.45 mm (= mode_radius)"
+        # another medium: the hints follow (Nd:YAG upper-state lifetime 230 µs, from memory:
+        # W. Koechner, Solid-State Laser Engineering, Nd:YAG table)
+        await type_into(app, pilot, "gain.material", "nd_yag")
+        assert editor.row("gain.upper_state_lifetime").input.placeholder == "library: 230 µs"
+        await type_into(app, pilot, "gain.mode_radius", "0.5 mm")
+        assert editor.row("gain.pump_radius").input.placeholder == "default: 0.5 mm (= mode_radius)"

@@ -54,7 +54,7 @@ def compare(name: str, text: str) -> None:
                     f"it after a look):\n{diff}")
 
 
-async def shot(size, keys=()) -> str:
+async def shot(size, keys=(), trace: str | None = None) -> str:
     app = PlannerApp(path=str(CAVITY), watch_interval=0)
     async with app.run_test(size=size) as pilot:
         await pilot.pause()
@@ -63,6 +63,15 @@ async def shot(size, keys=()) -> str:
             await pilot.pause()
             if not app.planning:
                 break
+        if trace is not None:  # t, the file name, enter; wait for the fit
+            await pilot.press("t")
+            await pilot.pause()
+            app.screen.query_one("#path").value = trace
+            await pilot.press("enter")
+            for _ in range(400):
+                await pilot.pause(0.02)
+                if app.trace_result is not None:
+                    break
         if keys:
             await pilot.press(*keys)
             for _ in range(100):
@@ -99,3 +108,35 @@ async def test_later_switch_out_linear_with_sensitivity_160x48() -> None:
 async def test_help_screen_120x40() -> None:
     """The help screen over the main screen: keys, regions and the start of the caution."""
     compare("help_120x40", await shot((120, 40), ("f1",)))
+
+
+async def test_trace_overlay_160x48(tmp_path) -> None:
+    """A photodiode trace loaded (t): the measured pulses on the build-up plot, the trace
+    panel under it with the measured round trip, the length error, the fit and the suggested
+    switch-out.  The trace is invented: made from the frozen cavity's own build-up with the
+    first space 2 mm longer, switched out one round trip before its peak (fixed noise seed)."""
+    import dataclasses
+
+    import numpy as np
+
+    from regentime.fileformat import load_cavity
+    from regentime.model import Space
+    from regentime.physics.optics import cavity_optics
+    from regentime.planning.buildup_plan import plan_buildup
+    from regentime.trace.synthetic import synthetic_trace
+
+    cav = load_cavity(str(CAVITY))
+    els = list(cav.elements)
+    i = next(k for k, e in enumerate(els) if isinstance(e, Space))
+    els[i] = dataclasses.replace(els[i], length=els[i].length + 2e-3)
+    real = dataclasses.replace(cav, elements=tuple(els))
+    optics = cavity_optics(real)
+    energy = plan_buildup(real, optics).result.energy
+    t, v = synthetic_trace(energy, optics.round_trip_time, int(np.argmax(energy)) - 1,
+                           dt=100e-12, seed=3)
+    path = tmp_path / "scope.csv"
+    with open(path, "w") as fh:
+        fh.write("# invented demo trace: synthetic, not a measurement\ntime (ns),photodiode (V)\n")
+        np.savetxt(fh, np.c_[t * 1e9, v], fmt="%.5f", delimiter=",")
+    text = await shot((160, 48), trace=str(path))
+    compare("trace_160x48", text.replace(str(tmp_path), "TMP"))

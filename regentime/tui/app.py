@@ -13,6 +13,7 @@ import os
 import time
 from typing import Any, Iterable, Optional
 
+from rich.text import Text
 from textual import events, work
 from textual.app import App, ComposeResult, SystemCommand
 from textual.binding import Binding
@@ -33,7 +34,8 @@ from regentime.tui.elements import ElementList
 from regentime.tui.field_row import FieldRow
 from regentime.tui.help_screen import HelpScreen
 from regentime.tui.load_error_screen import LoadErrorScreen
-from regentime.tui.panels import ChecksPanel, ContrastPanel, TimingPanel
+from regentime.tui.panels import ChecksPanel, ContrastPanel, TimingPanel, TracePanel
+from regentime.tui.trace_actions import TraceActions
 
 DEMO_TITLE = "built-in demo (invented scenario)"
 
@@ -62,10 +64,17 @@ KEYS = [
      "x", True),
     ("r", "reload", "reload", "Reload the file from disk", "r", False),
     ("e", "toggle_editor", "editor", "Show / hide the parameter editor", "e", True),
+    ("t", "load_trace", "trace", "Load a photodiode trace: overlay the measured build-up, fit it, "
+     "suggest a switch-out", "t", True),
+    ("a", "apply_trace", "apply trace", "Switch out where the loaded trace suggests (w writes it)",
+     "a", False),
+    ("T", "clear_trace", "clear trace", "Remove the photodiode trace overlay", "T", False),
     ("ctrl+q", "quit", "quit", "Quit (asks first when there are unsaved changes)", "^q", True),
 ]
 OTHER_KEYS = [
     ("in a value box", [("type", "the value with its unit: '9 mJ', '250 mm', '99.8 %'"),
+                        ("empty it", "removes an optional key from the file: the default "
+                                     "shown in grey applies again (required keys refuse)"),
                         ("escape", "leave the box (back to the build-up plot)"),
                         ("tab / shift+tab", "next / previous box or region")]),
     ("build-up plot", [("← / →", "switch out one round trip earlier / later")]),
@@ -78,7 +87,7 @@ OTHER_KEYS = [
 ]
 
 
-class PlannerApp(App[int]):
+class PlannerApp(TraceActions, App[int]):
     """Plan a regen interactively.  Give it a path (opened here) or a document; neither: demo."""
 
     CSS_PATH = "app.tcss"
@@ -115,6 +124,7 @@ class PlannerApp(App[int]):
             yield ParameterEditor(id="editor")
             with VerticalScroll(id="results"):
                 yield BuildupPlot(id="plot")
+                yield TracePanel(id="trace")
                 yield TimingPanel(id="timing")
                 with Horizontal(id="lower"):
                     yield ContrastPanel(id="contrast")
@@ -125,6 +135,7 @@ class PlannerApp(App[int]):
     async def on_mount(self) -> None:
         self.query_one("#plot").border_title = "build-up"
         self.query_one("#timing").border_title = "switching and delay generator"
+        self.query_one("#trace").border_title = "photodiode trace (t loads, a applies, T removes)"
         self.query_one("#contrast").border_title = "contrast"
         self.query_one("#checks").border_title = "checks"
         self.query_one("#editor").border_title = "parameters"
@@ -222,8 +233,8 @@ class PlannerApp(App[int]):
         if self.doc is None:
             return
         self.generation += 1
-        self._plan_wanted = (self.doc.text(), self.doc.source, self.override, self.generation,
-                        time.perf_counter())
+        self._plan_wanted = (self.doc.snapshot(), self.doc.source, self.override,
+                             self.generation, time.perf_counter())
         if not self._plan_running:
             self._start_next()
 
@@ -240,16 +251,17 @@ class PlannerApp(App[int]):
         return self._plan_running or self._plan_wanted is not None
 
     @work(thread=True, exclusive=True, group="plan", exit_on_error=False)
-    def _plan_worker(self, text: str, source: Optional[str], override: Any, gen: int,
+    def _plan_worker(self, snapshot: tuple, source: Optional[str], override: Any, gen: int,
                      started: float) -> None:
-        from regentime.fileformat.loader import load_cavity_text
+        from regentime.fileformat.document import cavity_of
         from regentime.planning.plan import make_plan
 
         worker = get_current_worker()
         outcome: tuple = ("none",)
         try:
             if gen == self.generation:  # skip work already superseded
-                outcome = ("ok", make_plan(load_cavity_text(text, source), dump=override))
+                # cavity_of = load_cavity_text on the text, reusing the document's parse
+                outcome = ("ok", make_plan(cavity_of(*snapshot, source), dump=override))
         except (InputError, InputErrors, PlanError) as exc:
             outcome = ("input", exc)
         except Exception as exc:  # noqa: BLE001 - a bug in planning: shown, never a crash
@@ -280,6 +292,9 @@ class PlannerApp(App[int]):
         self.query_one(ChecksPanel).show(plan)
         self._update_summary()
         self.last_plan_seconds = time.perf_counter() - started
+        if self.trace_result is not None:
+            self._show_trace()
+            self._schedule_refit()
 
     def _plan_failed(self, gen: int, exc: Exception) -> None:
         if gen != self.generation:
@@ -290,17 +305,18 @@ class PlannerApp(App[int]):
         self._clear_cross_marks()
         for err in errors:
             path = getattr(err, "path", "")
+            if path:  # kept also for rows not on screen yet (an element editor opening)
+                self.cross_marked.setdefault(path, _reason(err))
             for row in self._rows(path):
                 if row.reason is None:
-                    row.set_error(_reason(err))
-                    self.cross_marked[path] = _reason(err)
+                    row.set_error(self.cross_marked[path])
         if isinstance(exc, PlanError):
             self.input_problems = [f"cannot plan: {exc}"]
         extra = [("error", f"✗ {p}") for p in self.input_problems]
         if self.plan is not None:
             self.query_one(ChecksPanel).show(self.plan, extra)
         else:
-            self.query_one(ChecksPanel).update("\n".join(t for _, t in extra))
+            self.query_one(ChecksPanel).show_text(Text("\n".join(t for _, t in extra)))
         self._update_summary()
 
     def _plan_crashed(self, gen: int, exc: Exception) -> None:
@@ -331,21 +347,25 @@ class PlannerApp(App[int]):
             return
         text = event.text.strip()
         current = self.doc.get(event.path)
-        if not text:
-            event.row.set_error(None if current is None else
-                                "empty: type a value (to remove the key, edit the file)")
+        if not text and (current is None or isinstance(current, (dict, list))):
+            event.row.set_error(None)
             return
-        if shown(current) == text and event.row.reason is None:
+        if text and shown(current) == text and event.row.reason is None:
             return
         try:
-            self.doc.set(event.path, text)
+            if text:
+                self.doc.set(event.path, text)
+            else:  # an emptied box removes the key: its default applies again
+                self.doc.delete(event.path)
         except InputError as exc:
-            event.row.set_error(_reason(exc))
+            event.row.set_error("required: type a value (this key cannot be removed)"
+                                if not text and exc.value == "" else _reason(exc))
             return
         event.row.set_error(None)
         if event.path == "dump":
             self.override = None
         self._after_edit(elements=event.path.startswith("cavity"))
+        self.query_one(ParameterEditor).refresh_hints(self.doc, event.path)
 
     def _after_edit(self, elements: bool = False) -> None:
         self._update_title()

@@ -3,7 +3,10 @@
 Shows E_k (energy after k round trips, from ``plan.buildup.result.energy``) on a log or
 linear axis, the chosen switch-out round trip (solid line) and the round trip of peak output
 (dashed line); on demand a strip below with the planner's sensitivities of the output to
-pump and seed (``plan.buildup.sensitivity_pump/seed``).  Numbers come from the plan only.
+pump and seed (``plan.buildup.sensitivity_pump/seed``).  With a photodiode trace loaded, the
+measured pulses (scaled by the trace fit, :func:`regentime.tui.view.trace_overlay`) are drawn
+as small crosses and the fitted envelope as a dotted line.  Numbers come from the plan and
+the trace analysis only.
 """
 
 from __future__ import annotations
@@ -22,6 +25,7 @@ from regentime.tui.canvas import Canvas, nice_ticks, scale
 _LEFT = 9  # columns for the y labels
 
 CURVE, CHOSEN, PEAK, S_PUMP, S_SEED = ("bold green", "bold yellow", "magenta", "cyan", "blue")
+MEASURED, FITTED = ("bold dark_orange", "dark_orange")
 
 
 class BuildupPlot(Widget, can_focus=True):
@@ -48,9 +52,15 @@ class BuildupPlot(Widget, can_focus=True):
     def __init__(self, **kw) -> None:
         super().__init__(**kw)
         self.plan = None
+        self.overlay = None  # view.TraceOverlay or None
 
     def set_plan(self, plan) -> None:
         self.plan = plan
+        self.refresh()
+
+    def set_overlay(self, overlay) -> None:
+        """Show (or, with None, remove) a measured build-up."""
+        self.overlay = overlay
         self.refresh()
 
     def action_nudge(self, delta: int) -> None:
@@ -73,11 +83,19 @@ class BuildupPlot(Widget, can_focus=True):
 
     def _draw(self, w: int, h: int) -> Text:
         b = self.plan.buildup
+        ov = self.overlay
         n_shown = max(2, min(int(b.n_shown or len(b.result.energy) - 1), len(b.result.energy) - 1))
         n_dump, n_peak = b.dump_round_trip, b.peak_round_trip
         n_shown = max(n_shown, min(n_dump + 2, len(b.result.energy) - 1))
         energy = [float(x) for x in b.result.energy[:n_shown + 1]]
-        caption_rows = 2
+        if ov is not None:  # the axis also covers the measured pulses (within reason)
+            last = max(ov.first_round_trip + len(ov.energies), ov.peak + 1)
+            n_shown = max(n_shown, min(last, 2 * n_shown))
+        measured = [(ov.first_round_trip + i, e) for i, e in enumerate(ov.energies)] if ov else []
+        fitted = [(ov.first_round_trip + i, e) for i, e in enumerate(ov.fitted)] if ov else []
+        measured = [(k, e) for k, e in measured if 0 <= k <= n_shown]
+        fitted = [(k, e) for k, e in fitted if 0 <= k <= n_shown]
+        caption_rows = 3 if ov is not None else 2
         plot_h = h - 1 - caption_rows  # one row of x ticks
         sens_h = 0
         if self.show_sensitivity and plot_h >= 7:
@@ -86,25 +104,41 @@ class BuildupPlot(Widget, can_focus=True):
         cw = w - _LEFT
         canvas = Canvas(cw, plot_h)
         xs = scale(list(range(n_shown + 1)), 0, n_shown, canvas.dots_x)
+        every = energy + [e for _, e in measured] + [e for _, e in fitted]
         if self.log_scale:
-            pos = [e for e in energy if e > 0 and math.isfinite(e)]
+            pos = [e for e in every if e > 0 and math.isfinite(e)]
             lo = math.floor(math.log10(min(pos))) if pos else -9
             hi = math.ceil(math.log10(max(pos))) if pos else 0
             hi = max(hi, lo + 1)
-            ys = scale([math.log10(e) if e > 0 else math.nan for e in energy], lo, hi, canvas.dots_y)
+            ymap = lambda v: scale([math.log10(e) if e > 0 else math.nan for e in v],  # noqa: E731
+                                   lo, hi, canvas.dots_y)
             step = max(1, math.ceil((hi - lo) / max(1, plot_h // 2)))
             ticks = [(10.0 ** k, (k - lo) / (hi - lo)) for k in range(lo, hi + 1, step)]
         else:
-            top = max([e for e in energy if math.isfinite(e)] or [1.0])
-            ys = scale(energy, 0.0, top * 1.05, canvas.dots_y)
+            top = max([e for e in every if math.isfinite(e)] or [1.0])
+            ymap = lambda v: scale(v, 0.0, top * 1.05, canvas.dots_y)  # noqa: E731
             ticks = [(t, t / (top * 1.05)) for t in nice_ticks(0.0, top, max(2, plot_h // 2))]
+        ys = ymap(energy)
         peak_layer = canvas.layer(PEAK)
         chosen_layer = canvas.layer(CHOSEN)
+        fit_layer = canvas.layer(FITTED) if ov is not None else None
         curve = canvas.layer(CURVE)
         canvas.vline(peak_layer, round(xs[min(n_peak, n_shown)]), dashed=True)
         if n_dump <= n_shown:
             canvas.vline(chosen_layer, round(xs[n_dump]))
+        if fitted:
+            fy = ymap([e for _, e in fitted])
+            for (k, _), y in zip(fitted, fy):  # one dot per round trip: a dotted line
+                if math.isfinite(y):
+                    canvas.dot(fit_layer, round(xs[k]), round(y))
         canvas.polyline(curve, zip(xs, ys))
+        if measured:
+            mark = canvas.layer(MEASURED)
+            for (k, _), y in zip(measured, ymap([e for _, e in measured])):
+                if math.isfinite(y):
+                    x, y = round(xs[k]), round(y)
+                    for dx, dy in ((0, 0), (-1, 0), (1, 0), (0, -1), (0, 1)):
+                        canvas.dot(mark, x + dx, y + dy)
         labels = {}
         for value, frac in ticks:
             row = plot_h - 1 - round(frac * (plot_h - 1))
@@ -113,8 +147,7 @@ class BuildupPlot(Widget, can_focus=True):
         for r, row in enumerate(canvas.cells()):
             text.append(f"{labels.get(r, ''):>{_LEFT - 1}}┤" if r in labels else " " * (_LEFT - 1) + "│",
                         style="dim")
-            for ch, st in row:
-                text.append(ch, style=st or None)
+            _append_cells(text, row)
             text.append("\n")
         legend = self._sensitivity(text, b, n_shown, xs, cw, sens_h) if sens_h else None
         # x axis
@@ -135,6 +168,12 @@ class BuildupPlot(Widget, can_focus=True):
         text.append(f" peak output after {n_peak}"[:w - 1])
         text.append(f"   x: round trip k, y: energy in the cavity ({scale_name})"[:max(0, w - 26)],
                     style="dim")
+        if ov is not None:
+            text.append("\n")
+            text.append("+", style=MEASURED)
+            text.append(" measured pulses (trace, scaled by its fit) "[:w - 1])
+            text.append("⠄⠄"[:max(0, w - 46)], style=FITTED)
+            text.append(" fitted envelope"[:max(0, w - 48)])
         if legend is not None:
             text.append("\n")
             text.append_text(legend)
@@ -159,8 +198,7 @@ class BuildupPlot(Widget, can_focus=True):
             label = f"{'+' if r == 0 else '−'}{lim:.2g}" if r in (0, len(rows) - 1) else (
                 "sens." if r == len(rows) // 2 else "")
             text.append(f"{label:>{_LEFT - 1}}│", style="dim")
-            for ch, st in row:
-                text.append(ch, style=st or None)
+            _append_cells(text, row)
             text.append("\n")
         n = b.dump_round_trip
         show = lambda a: f"{float(a[n]):+.3f}" if n < len(a) and math.isfinite(a[n]) else "—"  # noqa: E731
@@ -171,3 +209,17 @@ class BuildupPlot(Widget, can_focus=True):
         legend.append("seed", style=S_SEED)
         legend.append(f" {show(b.sensitivity_seed)}  (d ln E_out / d ln x after {n})"[:max(0, cw - 12)])
         return legend
+
+
+def _append_cells(text: Text, row) -> None:
+    """Append a canvas row, one span per run of cells of the same style (fewer spans to
+    render than one per cell)."""
+    run, style = [], None
+    for ch, st in row:
+        if st != style and run:
+            text.append("".join(run), style=style or None)
+            run = []
+        style = st
+        run.append(ch)
+    if run:
+        text.append("".join(run), style=style or None)

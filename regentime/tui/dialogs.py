@@ -112,3 +112,49 @@ class KindScreen(ModalScreen[Optional[str]]):
 
     def action_cancel(self) -> None:
         self.dismiss(None)
+
+
+class TraceScreen(ModalScreen[Optional[tuple]]):
+    """Ask for a photodiode trace file and, optionally, its channel; dismisses with
+    (path, channel or None), or None on escape."""
+
+    DEFAULT_CSS = _CSS.format(name="TraceScreen") + "TraceScreen Input { margin: 0 0 1 0; }"
+    BINDINGS = [Binding("escape", "cancel", "Cancel")]
+
+    def __init__(self, path: str = "", channel: str = "") -> None:
+        super().__init__()
+        self.path = path
+        self.channel = channel
+
+    def compose(self) -> ComposeResult:
+        with Vertical():
+            yield Static("Load a photodiode trace of the build-up:", classes="question")
+            yield Input(self.path, id="path", placeholder="scope file: .csv, .txt, .tsv, .npy, .npz")
+            yield Static("Channel (a column name or its number among the signal columns; empty: "
+                         "a photodiode column, else the first):", classes="hint")
+            yield Input(self.channel, id="channel", placeholder="empty: automatic")
+            yield Static("The fit runs in the background; the result is overlaid on the "
+                         "build-up plot. Apply a changed switch-out at low pump power first.",
+                         classes="hint")
+            with Horizontal():
+                yield Button("Load", id="ok", variant="primary")
+                yield Button("Cancel", id="cancel")
+
+    def on_input_submitted(self, event: Input.Submitted) -> None:
+        event.stop()
+        self._done()
+
+    def on_button_pressed(self, event: Button.Pressed) -> None:
+        event.stop()
+        if event.button.id == "ok":
+            self._done()
+        else:
+            self.dismiss(None)
+
+    def _done(self) -> None:
+        path = self.query_one("#path", Input).value.strip()
+        channel = self.query_one("#channel", Input).value.strip()
+        self.dismiss((path, channel or None) if path else None)
+
+    def action_cancel(self) -> None:
+        self.dismiss(None)

@@ -22,10 +22,47 @@ ALWAYS = ("seed", "gain", "pump", "switch", "cables", "outputs")
 WHEN_PRESENT = ("generator", "scope", "cleaner", "checks")
 
 
-def tooltip(spec: FieldSpec) -> str:
+# Examples for rows where the unit's general example would mislead ("e.g. 250 mm" for a
+# spectral width).  Plausible orders of magnitude for a regen (common practice), not defaults.
+EXAMPLES = {
+    "wavelength": "800 nm", "seed.energy": "2 nJ", "seed.duration": "150 ps",
+    "seed.train_rate": "80 MHz", "seed.arrival": "7 ns", "seed.bandwidth": "30 nm",
+    "gain.mode_radius": "0.5 mm", "gain.pump_radius": "0.6 mm", "pump.wavelength": "532 nm",
+    "pump.lead": "150 ns", "pump.latency": "200 ns", "pump.absorbed_fraction": "0.85",
+    "pump.overlap": "90 %", "switch.on_latency": "50 ns", "switch.off_latency": "50 ns",
+    "switch.jitter": "100 ps", "switch.max_gate": "2 us", "generator.resolution": "5 ps",
+    "length": "1.5 m", "aperture": "3 mm", "thickness": "1 mm",
+}
+# gain: keys that override a property of the gain-medium library entry (same names)
+LIBRARY_KEYS = ("emission_cross_section", "absorption_cross_section", "upper_state_lifetime",
+                "n2", "damage_fluence", "damage_duration", "doping_density")
+# defaults that are another key's value: (this key, the key it follows)
+FOLLOWS = {"switch.fall_time": "switch.rise_time", "switch.off_latency": "switch.on_latency",
+           "gain.pump_radius": "gain.mode_radius"}
+_PRETTY = (("^-3", "⁻³"), ("^2", "²"), ("^3", "³"))  # the unit parser reads both spellings
+
+
+def example(spec: FieldSpec, path: str = "") -> str:
+    """An example value to type in ``path``'s box: the field's own, else the unit's."""
+    key = path.rsplit(".", 1)[-1]
+    for name in (path, key if path.startswith(("cables.", "cleaner.cable.")) or
+                 path.startswith("cavity[") else None):
+        if name in EXAMPLES:
+            return EXAMPLES[name]
+    return spec.unit_hint
+
+
+def pretty(text: str) -> str:
+    for a, b in _PRETTY:
+        text = text.replace(a, b)
+    return text
+
+
+def tooltip(spec: FieldSpec, path: str = "") -> str:
     parts = [spec.help]
-    if spec.unit_hint:
-        parts.append(f"e.g. {spec.unit_hint}")
+    hint = example(spec, path)
+    if hint:
+        parts.append(f"e.g. {hint}")
     rng = spec.range_text()
     if rng:
         parts.append(rng)
@@ -34,13 +71,51 @@ def tooltip(spec: FieldSpec) -> str:
     return "; ".join(parts)
 
 
-def placeholder(spec: FieldSpec) -> str:
-    """Grey text of an empty box: the default, or an example of the unit (never a value)."""
+def placeholder(spec: FieldSpec, path: str = "", doc=None) -> str:
+    """Grey text of an empty box: what applies when the box stays empty (the library's value
+    for the chosen gain medium, the value of the key a default follows, the default), or an
+    example of what to type (never a value the plan uses that is not one)."""
+    known = known_default(path, doc) if doc is not None else None
+    if known:
+        return known
+    if path.startswith("outputs."):
+        return "default: the next free outN"
     if spec.default:
         return f"default: {spec.default}"
+    hint = example(spec, path)
     if spec.required:
-        return f"required, e.g. {spec.unit_hint}" if spec.unit_hint else "required"
-    return f"e.g. {spec.unit_hint}" if spec.unit_hint else "not set"
+        return f"required, e.g. {hint}" if hint else "required"
+    return f"e.g. {hint}" if hint else "not set"
+
+
+def known_default(path: str, doc) -> str | None:
+    """'library: 3e-19 cm²' (the value of the gain-medium library entry that the file's
+    gain.material names) for gain-medium overrides and the top-level wavelength, 'default:
+    3.5 ns (= rise_time)' for keys that follow another; None when nothing specific is known."""
+    from regentime.units import format_quantity
+
+    section, _, key = path.rpartition(".")
+    if (section == "gain" and key in LIBRARY_KEYS) or path == "wavelength":
+        medium = _medium(doc.get("gain.material"))
+        if medium is None:
+            return None
+        dim = "length" if path == "wavelength" else SECTIONS["gain"].fields[key].dimension
+        value = getattr(medium, "wavelength" if path == "wavelength" else key)
+        return f"library: {pretty(format_quantity(value, dim))}"
+    if path in FOLLOWS:
+        other = doc.get(FOLLOWS[path])
+        name = FOLLOWS[path].rsplit(".", 1)[-1]
+        return f"default: {other} (= {name})" if isinstance(other, (str, int, float)) else None
+    return None
+
+
+def _medium(name):
+    """The library entry of the gain medium the file names (None if unknown)."""
+    if not isinstance(name, str):
+        return None
+    from regentime.materials.gain_media import GAIN_MEDIA
+
+    return GAIN_MEDIA.get(name.strip())
 
 
 def shown(value) -> str:
@@ -82,8 +157,8 @@ def field_rows(doc) -> Iterator[tuple[str, list[FieldRow]]]:
 
 
 def _row(doc, path: str, label: str, spec: FieldSpec) -> FieldRow:
-    return FieldRow(path, label.replace("_", " "), shown(doc.get(path)), placeholder(spec),
-                    f"{path}: {tooltip(spec)}")
+    return FieldRow(path, label.replace("_", " "), shown(doc.get(path)),
+                    placeholder(spec, path, doc), f"{path}: {tooltip(spec, path)}")
 
 
 class ParameterEditor(VerticalScroll):
@@ -121,3 +196,14 @@ class ParameterEditor(VerticalScroll):
         """Show the document's current values (after a reload or a write-back)."""
         for r in self.query(FieldRow):
             r.set_value(shown(doc.get(r.path)))
+
+    def refresh_hints(self, doc, changed: str) -> None:
+        """After ``changed`` was edited: the placeholders that depend on it (the gain medium's
+        library values, a default that follows another key)."""
+        if changed == "gain.material":
+            paths = {"wavelength"} | {f"gain.{k}" for k in LIBRARY_KEYS}
+        else:
+            paths = {p for p, other in FOLLOWS.items() if other == changed}
+        for r in self.query(FieldRow):
+            if r.path in paths:
+                r.set_placeholder(placeholder(doc.spec(r.path), r.path, doc))

@@ -49,13 +49,18 @@ class ElementScreen(ModalScreen[None]):
                         spec = section.fields[key]
                         path = f"cavity[{self.index}].{self.kind}.{key}"
                         yield FieldRow(path, key.replace("_", " "), shown(self.doc.get(path)),
-                                       placeholder(spec), f"{path}: {tooltip(spec)}")
+                                       placeholder(spec, path, self.doc),
+                                       f"{path}: {tooltip(spec, path)}")
             yield Static("Changes apply as you type; invalid values are marked and not applied.",
                          classes="hint")
             yield Button("Close (esc)", id="close")
 
     def on_mount(self) -> None:
         rows = self.query(FieldRow)
+        marks = getattr(self.app, "cross_marked", {})  # problems the whole file has now
+        for row in rows:
+            if row.path in marks and row.reason is None:
+                row.set_error(marks[row.path])
         if rows:
             rows.first().input.focus()
 

@@ -78,8 +78,16 @@ class FieldRow(Widget):
             box.value = text
         self.set_error(None)
 
+    def set_placeholder(self, text: str) -> None:
+        """Change the grey text shown while the box is empty."""
+        self._placeholder = text
+        if self.is_mounted and self.input.placeholder != text:
+            self.input.placeholder = text
+
     def set_error(self, reason: Optional[str]) -> None:
         """Mark the row invalid with ``reason`` (None: valid)."""
+        if reason == self.reason:
+            return  # nothing to redraw (most edits: valid before, valid after)
         self.reason = reason
         self.set_class(reason is not None, "bad")
         if self.is_mounted:

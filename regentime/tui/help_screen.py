@@ -64,7 +64,7 @@ class HelpScreen(ModalScreen[None]):
     def _keys_table(self) -> Table:
         table = Table(title="Keys", title_justify="left", expand=True, show_header=False,
                       box=None, padding=(0, 1))
-        table.add_column("key", style="bold cyan", no_wrap=True, width=14)
+        table.add_column("key", style="bold cyan", no_wrap=True, width=16)
         table.add_column("what it does", ratio=1)
         for group, rows in self.keys:
             table.add_row(Text(group, style="bold"), "")

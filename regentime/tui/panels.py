@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-import math
+from typing import Optional
 
 from rich.text import Text
 from textual.widgets import Static
@@ -11,16 +11,39 @@ from regentime.tui import view
 
 
 class ResultPanel(Static):
-    """A Static that asks for a new layout only when its height would change (a layout of the
-    whole screen costs tens of milliseconds; most edits change numbers, not line counts)."""
+    """A Static that redraws only when its text changed, and asks for a new layout of the
+    screen only when its height changes (a layout costs several milliseconds; most edits
+    change numbers, not line counts).
 
-    _height_key: tuple = ()
+    The height is measured the way Textual lays the text out.  When new text is one line
+    shorter than what is on screen (a message that wraps for some values and not for others),
+    it is padded with an empty line instead: the box keeps its height, the screen its layout,
+    and the panels below do not jump up and down while a value is being tuned.
+    """
+
+    SHRINK_PAD = 1  # lines of padding allowed before the box shrinks
+    _shown: Optional[Text] = None
+    _box: tuple = ()  # (width, lines) on screen
 
     def show_text(self, text: Text) -> None:
-        width = max(1, self.content_size.width)
-        key = (width, sum(max(1, math.ceil(len(line) / width)) for line in text.plain.split("\n")))
-        self.update(text, layout=key != self._height_key)
-        self._height_key = key
+        width = self.content_size.width
+        if text == self._shown and width == (self._box or (None,))[0]:
+            return
+        self._shown = text
+        if width <= 0:  # not laid out yet: the first layout measures it
+            self._box = ()
+            self.update(text)
+            return
+        from textual.visual import visualize
+
+        lines = visualize(self, text, markup=False).get_height(self.styles, width)
+        if self._box and self._box[0] == width and 0 < self._box[1] - lines <= self.SHRINK_PAD:
+            text = text.copy()
+            text.append("\n" * (self._box[1] - lines))
+            lines = self._box[1]
+        box = (width, lines)
+        self.update(text, layout=box != self._box)
+        self._box = box
 
 _LEVEL_STYLE = {"error": "bold red", "warning": "yellow", "info": ""}
 
@@ -62,4 +85,14 @@ class ChecksPanel(ResultPanel):
         lines = list(extra or []) + view.check_lines(plan)
         for i, (level, line) in enumerate(lines):
             text.append(line + ("\n" if i < len(lines) - 1 else ""), style=_LEVEL_STYLE.get(level))
+        self.show_text(text)
+
+
+class TracePanel(ResultPanel):
+    """A loaded photodiode trace: measured round trip, length error, fit, suggested switch-out."""
+
+    def show(self, lines: list[tuple[str, str]]) -> None:
+        text = Text()
+        for i, (style, line) in enumerate(lines):
+            text.append(line + ("\n" if i < len(lines) - 1 else ""), style=style or None)
         self.show_text(text)
