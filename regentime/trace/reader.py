@@ -13,10 +13,14 @@ Accepted layouts (detected from the first 64 KiB, never configured):
   (named 1-D arrays, the time one called ``t``/``time``/``x`` with an optional unit suffix, or
   one 2-D array; or ``dt`` [+ ``t0``] and signal arrays).
 
-Speed: the numeric block is parsed by numpy's C reader (:func:`numpy.loadtxt` on a file handle
-positioned at each chunk, or :func:`numpy.fromstring` after translating decimal commas) into
-one preallocated array; no Python object is made per sample.  Large files are split at line
-boundaries and parsed by forked worker processes writing into one shared array.
+Speed: the layout is detected here; the numeric block is then parsed in C, never one Python
+object per sample.  With the optional ``trace`` extra (pandas >= 3.1) it goes to pandas' C
+reader in chunks (:mod:`regentime.trace.fastparse`, about 1.5x faster than
+:func:`numpy.loadtxt` on a 10-million-sample file, same bits).  Without it, or whenever that
+parse fails or finds a non-finite value, the exact numpy path runs: :func:`numpy.loadtxt` on a
+file handle positioned at each chunk, or :func:`numpy.fromstring` after translating decimal
+commas, into one preallocated array, large files split at line boundaries across forked
+worker processes.  The numpy path is the one that names the bad line of a malformed file.
 
 Errors raise :class:`regentime.errors.InputError` naming the file and the line.
 """
@@ -27,6 +31,7 @@ import math
 import mmap
 import os
 import re
+import sys
 from dataclasses import dataclass, field
 from typing import Optional, Sequence
 
@@ -37,6 +42,9 @@ from regentime.errors import InputError
 _SNIFF_BYTES = 1 << 16  # enough for any preamble a scope writes, and a few hundred data lines
 _CHUNK_BYTES = 1 << 23  # 8 MiB of text per parse job: bounded scratch memory, few jobs
 _PARALLEL_MIN_BYTES = 1 << 26  # below 64 MiB forking costs more than it saves
+# below 32 MiB of numbers, importing pandas (~0.2 s) costs more than its faster parse saves
+# over the numpy path (measured: benchmarks/bench_trace_read.py, docs/trace.md)
+_FAST_MIN_BYTES = 1 << 25
 _MIN_SAMPLES = 16
 
 TIME_UNITS = {"s": 1.0, "sec": 1.0, "secs": 1.0, "second": 1.0, "seconds": 1.0,
@@ -73,6 +81,7 @@ class Trace:
     t0: float = 0.0  # s, fitted time of sample 0 (t = t0 + i·dt)
     sample_interval: float = 0.0  # s, fitted dt
     notes: list = field(default_factory=list)
+    parser: str = "numpy"  # which parser read the numbers: "pandas" (fast path), "numpy", "npy"
 
     @property
     def n_samples(self) -> int:
@@ -82,13 +91,21 @@ class Trace:
 # ----- public entry ------------------------------------------------------------------------
 
 
-def read_trace(path: str, channel: Optional[str] = None, workers: Optional[int] = None) -> Trace:
+def read_trace(path: str, channel: Optional[str] = None, workers: Optional[int] = None,
+               parser: str = "auto") -> Trace:
     """Read ``path`` and return a :class:`Trace` with the chosen ``channel``.
 
     ``channel``: a column name (case-insensitive) or a number counting the signal columns
     from 1; default: a column whose name says photodiode, else the first signal column.
-    ``workers``: parallel parse processes for large text files (default: automatic).
+    ``workers``: parallel parse processes of the numpy path for large text files (default:
+    automatic).  ``parser``: ``"auto"`` (pandas' C reader when the ``trace`` extra is
+    installed and the file is large enough to repay importing pandas, or pandas is already
+    imported; else numpy), ``"pandas"`` (the fast path whatever the size, if installed) or
+    ``"numpy"`` (always the exact numpy path).  Both give the same arrays bit for bit; a file
+    the fast parser cannot read goes to the numpy path, which names the bad line.
     """
+    if parser not in ("auto", "pandas", "numpy"):
+        raise ValueError(f"parser must be 'auto', 'pandas' or 'numpy', not {parser!r}")
     if not os.path.exists(path):
         raise InputError("SCOPE", path, "an existing trace file")
     if os.path.isdir(path):
@@ -96,9 +113,9 @@ def read_trace(path: str, channel: Optional[str] = None, workers: Optional[int] 
     lower = path.lower()
     if lower.endswith(".npy") or lower.endswith(".npz"):
         names, units, columns, layout = _read_numpy(path)
-        first_line = 0
+        first_line, used = 0, "npy"
     else:
-        names, units, columns, layout, first_line = _read_text(path, workers)
+        names, units, columns, layout, first_line, used = _read_text(path, workers, parser)
     time_name, sig_names = names[0], list(names[1:])
     scale, unit = _time_scale(time_name, units)
     time = columns[0]
@@ -106,7 +123,8 @@ def read_trace(path: str, channel: Optional[str] = None, workers: Optional[int] 
         time = time * scale
     idx = _pick_channel(sig_names, channel, path)
     trace = Trace(time=time, signal=columns[1 + idx], channel=sig_names[idx], channels=tuple(sig_names),
-                  source=path, time_unit=unit, layout=layout, first_data_line=first_line)
+                  source=path, time_unit=unit, layout=layout, first_data_line=first_line,
+                  parser=used)
     _check_time(trace)
     return trace
 
@@ -217,13 +235,13 @@ def _sniff(path: str, head: bytes) -> _Sniff:
 
 
 def _byte_offset_of_line(head: bytes, line: int) -> int:
-    pos = 0
+    pos = 3 if head.startswith(b"\xef\xbb\xbf") else 0  # skip a UTF-8 byte-order mark
     for _ in range(line):
         pos = head.index(b"\n", pos) + 1
     return pos
 
 
-def _read_text(path: str, workers: Optional[int]):
+def _read_text(path: str, workers: Optional[int], parser: str = "auto"):
     size = os.path.getsize(path)
     if size == 0:
         raise InputError("", "(empty file)", "a trace: a time column and at least one signal column",
@@ -231,6 +249,34 @@ def _read_text(path: str, workers: Optional[int]):
     with open(path, "rb") as fh:
         head = fh.read(_SNIFF_BYTES)
     sn = _sniff(path, head)
+    desc = {",": "comma", ";": "semicolon", "\t": "tab", None: "whitespace"}[sn.delimiter]
+    layout = f"{desc}-separated" + (", decimal comma" if sn.decimal_comma else "") + \
+        f", {sn.ncols} columns, {sn.preamble} line(s) before the data"
+    units = dict(sn.units)
+    if "row" in units:
+        units["time_row"] = units["row"][0]
+    big = size - sn.data_offset >= _FAST_MIN_BYTES or _pandas_imported()
+    if parser == "pandas" or (parser == "auto" and big):
+        from regentime.trace import fastparse
+
+        if fastparse.available():
+            block = fastparse.parse_block(path, sn.data_offset, sn.ncols, sn.delimiter,
+                                          sn.decimal_comma,
+                                          fastparse.rows_estimate(head, sn.data_offset, size),
+                                          head[sn.data_offset:])
+            if block is not None and block.shape[1] >= _MIN_SAMPLES:
+                return sn.names, units, [block[k] for k in range(sn.ncols)], layout, \
+                    sn.data_line + 1, "pandas"
+    out = _read_text_numpy(path, sn, size, workers)
+    return sn.names, units, [out[:, k] for k in range(sn.ncols)], layout, sn.data_line + 1, "numpy"
+
+
+def _pandas_imported() -> bool:
+    return "pandas" in sys.modules
+
+
+def _read_text_numpy(path: str, sn: _Sniff, size: int, workers: Optional[int]) -> np.ndarray:
+    """The exact path: numpy's C reader chunk by chunk; errors name the line."""
     jobs = _plan_chunks(path, sn.data_offset, size)
     rows_total = sum(j[2] for j in jobs)
     if rows_total < _MIN_SAMPLES:
@@ -247,13 +293,7 @@ def _read_text(path: str, workers: Optional[int]):
             if err:
                 raise _job_error(path, sn, err)
     _check_finite(path, sn, out, jobs)
-    desc = {",": "comma", ";": "semicolon", "\t": "tab", None: "whitespace"}[sn.delimiter]
-    layout = f"{desc}-separated" + (", decimal comma" if sn.decimal_comma else "") + \
-        f", {sn.ncols} columns, {sn.preamble} line(s) before the data"
-    units = dict(sn.units)
-    if "row" in units:
-        units["time_row"] = units["row"][0]
-    return sn.names, units, [out[:, k] for k in range(sn.ncols)], layout, sn.data_line + 1
+    return out
 
 
 def _plan_chunks(path: str, start: int, size: int) -> list:
@@ -292,13 +332,13 @@ def _plan_chunks(path: str, start: int, size: int) -> list:
 
 def _count_rows(block: bytes) -> tuple:
     """(non-blank lines, newlines) in ``block``; a line of only \\r or spaces is blank."""
-    nl = block.count(b"\n")
-    if b"\n\n" not in block and b"\n\r\n" not in block and block[:1] not in (b"\n", b"\r"):
-        # the usual case, no empty line (C-speed scans); lines of only spaces are not looked for
-        return nl + (0 if block.endswith(b"\n") else 1), nl
     arr = np.frombuffer(block, dtype=np.uint8)
     ends = np.flatnonzero(arr == 10)
     nl = int(ends.size)
+    if block[:1] not in (b"\n", b"\r") and (nl < 2 or int(np.diff(ends).min()) > 2):
+        # the usual case: no line shorter than 2 bytes, so no empty line (\n\n, \n\r\n);
+        # lines of only spaces are not looked for here
+        return nl + (0 if block.endswith(b"\n") else 1), nl
     starts = np.concatenate(([0], ends + 1))
     stops = np.concatenate((ends, [arr.size]))
     ink = ~((arr == 32) | (arr == 13) | (arr == 9) | (arr == 10))
@@ -399,6 +439,9 @@ def _job_error(path: str, sn: _Sniff, err: tuple) -> InputError:
                 continue
             text = raw.decode("utf-8", errors="replace").strip()
             if not text:
+                if sn.delimiter is not None and raw.strip(b"\r\n"):  # loadtxt stops on these
+                    return InputError("", "(only spaces)", "numbers or an empty line",
+                                      line=lineno, source=path)
                 continue
             if sn.delimiter and text.endswith(sn.delimiter) and len(text) > 1:
                 text = text[:-1].rstrip()
