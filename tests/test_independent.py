@@ -242,11 +242,9 @@ def test_plan_period(tool, name):
         assert tool[name]["dump"]["period"] == rec["period"]
 
 
-STAB_MISCLASSIFIED = (
-    "regentime stability calls a slowly converging period-1 point (fixed-point multiplier "
-    "-0.988, which plan itself reports as period 1) period 2: 400 transient shots leave an "
-    "alternation that passes the 1e-4 lag-2 test")
-STAB_XFAIL = {("tests/independent/cavities/yvo4_strong_seed.yaml", 40, 300e3): STAB_MISCLASSIFIED}
+# (resolved) regentime stability used to call a slowly converging period-1 point (fixed-point
+# multiplier -0.988) period 2; a stable fixed point now classifies as period 1.
+STAB_XFAIL: dict = {}
 
 
 def _period_points():

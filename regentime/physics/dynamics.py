@@ -264,6 +264,20 @@ def iterate_tables(tables: ShotTables, case, k_index, decay, transient: int, obs
             break
         run(todo, extend)
         period[todo] = _classify_columns(obs[:, todo], rel_tol, max_period)
+    # A point whose period-1 fixed point is stable (|F'(u*)| < 1) is period 1, even if its orbit
+    # from full storage still alternates after the transient: near |F'| = 1 the alternation
+    # decays as |F'|^s and can pass the lag-2 test long before it dies out.
+    todo = np.flatnonzero(period != 1)
+    if todo.size:
+        case_a = np.broadcast_to(np.asarray(case), (p_n,))[todo]
+        k_a = np.broadcast_to(np.asarray(k_index), (p_n,))[todo]
+        u_star, slope, e_star = fixed_points_tables(tables, case_a, k_a, d[todo])
+        stable = np.abs(slope) < 1.0
+        if stable.any():
+            idx = todo[stable]
+            period[idx] = 1
+            obs[:, idx] = e_star[stable]
+            u[idx] = u_star[stable]
     return Orbit(period, obs.mean(0), obs.min(0), obs.max(0), shots, u, obs.T.copy() if keep else None)
 
 
