@@ -19,7 +19,7 @@ Engineering, ch. 4; Siegman, Lasers, ch. 10.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 
 import numpy as np
 
@@ -210,7 +210,7 @@ def apply_ops(ops, energy, j_st, gm: GainModel, track: bool = False):
 
 
 def simulate_buildup(gm: GainModel, path: RoundTripPath, seed_energy, stored_energy, n_round_trips: int,
-                     track: bool = True) -> BuildupResult:
+                     track: bool = True, stored_fluence=None) -> BuildupResult:
     """Run the build-up for ``n_round_trips`` round trips from injection.
 
     seed_energy: seed pulse energy at the polarizer (J), any batch shape; stored_energy: the
@@ -222,6 +222,8 @@ def simulate_buildup(gm: GainModel, path: RoundTripPath, seed_energy, stored_ene
     shape = np.broadcast_shapes(seed_energy.shape, stored_energy.shape)
     energy = np.broadcast_to(seed_energy * path.reflection_s, shape).astype(float)
     j_st = gm.stored_fluence(np.broadcast_to(stored_energy, shape))
+    if stored_fluence is not None:  # a given radial profile (e.g. a ring-model steady state)
+        j_st = np.broadcast_to(np.asarray(stored_fluence, dtype=float), j_st.shape).copy()
     j_eq = gm.stored_fluence(gm.pump_rate * gm.tau) if np.any(gm.pump_rate) else 0.0
     decay = gm.buildup_decay(path.dt)
     n = int(n_round_trips)
@@ -261,21 +263,35 @@ def shot(gm: GainModel, path: RoundTripPath, seed_energy, j_st, n_round_trips, p
     j_st = np.array(j_st, dtype=float)
     batch = j_st.shape[:-1]
     n_arr = np.broadcast_to(np.asarray(n_round_trips), batch)
-    n_max = int(n_arr.max())
-    energy = np.broadcast_to(np.asarray(seed_energy, dtype=float) * path.reflection_s, batch).astype(float)
-    j_eq = gm.stored_fluence(gm.pump_rate * gm.tau)
-    decay = np.exp(-path.dt / gm.tau)
-    out = np.zeros(batch)
-    j_end = j_st.copy()
-    for k in range(1, n_max + 1):
-        energy, j_st, _, _ = apply_ops(path.ops, energy, j_st, gm, False)
-        j_st = j_eq + (j_st - j_eq) * decay
-        done = n_arr == k
-        if done.any():
-            e_out, j_after, _, _ = apply_ops(path.out_ops, energy[done], j_st[done], gm, False)
-            out[done] = e_out * path.reflection_s * path.switching_efficiency
-            j_end[done] = j_after
     rest = np.maximum(period - n_arr * path.dt, 0.0)[..., None]
+    # work on a flat batch sorted by N, and drop the members that are done (same arithmetic)
+    rings = j_st.shape[-1]
+    n_flat = n_arr.reshape(-1)
+    order = np.argsort(n_flat, kind="stable")
+    n_sorted = n_flat[order]
+    j = j_st.reshape(-1, rings)[order]
+    energy = np.broadcast_to(np.asarray(seed_energy, dtype=float) * path.reflection_s, batch).reshape(-1)[order].copy()
+    j_eq_all = np.broadcast_to(gm.stored_fluence(gm.pump_rate * gm.tau), batch + (rings,)).reshape(-1, rings)[order]
+    decay = np.exp(-path.dt / gm.tau)
+    out = np.zeros(n_flat.size)
+    j_end = j.copy()
+    first = 0  # members [first:] are still running
+    n_max = int(n_sorted[-1]) if n_sorted.size else 0
+    for k in range(1, n_max + 1):  # (extraction does not depend on the pump rate)
+        energy, j, _, _ = apply_ops(path.ops, energy, j, gm, False)
+        j = j_eq_all[first:] + (j - j_eq_all[first:]) * decay
+        stop = int(np.searchsorted(n_sorted, k, side="right")) - first  # members with N == k
+        if stop > 0:
+            e_out, j_after, _, _ = apply_ops(path.out_ops, energy[:stop], j[:stop], gm, False)
+            out[first:first + stop] = e_out * path.reflection_s * path.switching_efficiency
+            j_end[first:first + stop] = j_after
+            first += stop
+            energy, j = energy[stop:], j[stop:]
+    inverse = np.empty_like(order)
+    inverse[order] = np.arange(order.size)
+    out = out[inverse].reshape(batch)
+    j_end = j_end[inverse].reshape(batch + (rings,))
+    j_eq = np.broadcast_to(gm.stored_fluence(gm.pump_rate * gm.tau), batch + (rings,))
     j_next = j_eq + (j_end - j_eq) * np.exp(-rest / gm.tau)
     return out, j_next
 

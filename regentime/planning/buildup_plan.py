@@ -47,6 +47,14 @@ class BuildupPlan:
     net_gain_ok: bool = True
     n_shown: int = 0
     repetition_rate: float = 0.0
+    injection_state: Optional[np.ndarray] = None  # stored fluence per ring at injection (ring model)
+
+    def stored_fluence_at_injection(self) -> np.ndarray:
+        """Stored fluence per ring (J/m²) at injection: the ring-model steady state when there
+        is one, else the stored energy distributed like the pump."""
+        if self.injection_state is not None:
+            return np.array(self.injection_state, dtype=float)
+        return self.gain.stored_fluence(self.stored_at_injection)
 
     @property
     def output_energy(self) -> float:
@@ -143,7 +151,7 @@ def _newton(gm, path, seeds, ns, period, x0, slope):
     return out, x, slope
 
 
-def _continuous(cavity: Cavity, gm: GainModel, path: RoundTripPath, n: int, must=None):
+def _continuous(cavity: Cavity, gm: GainModel, path: RoundTripPath, n: int, must=None, exact_rings=True):
     """Steady-state output for every N = 1 … n, and sensitivities at the steady state.
 
     One build-up per point of a stored-energy grid serves every N at once
@@ -173,14 +181,52 @@ def _continuous(cavity: Cavity, gm: GainModel, path: RoundTripPath, n: int, must
     # polish with Newton steps on the exact shot map (slope from the grid): every N for the
     # one-ring model, the round trips near the peak (and a given dump) for the ring model
     nominal = outs[0]
-    if gm.grid.rings == 1:
-        cand = np.arange(n_fit)
-    else:
-        top = int(np.nanargmax(nominal))
-        cand = np.flatnonzero((nominal >= 0.85 * np.nanmax(nominal)) | (np.abs(np.arange(n_fit) - top) <= 3))
+    cand = np.arange(n_fit)
+    ring_state = {}
+    if gm.grid.rings > 1 and not exact_rings:
+        pass  # span search only: the energy-only estimate is enough to find the peak
+    elif gm.grid.rings > 1:
+        # ring model: the exact steady state carries every ring's stored fluence from shot to
+        # shot.  Solved for a coarse set of N, then for every N within reach of the peak, with
+        # the pump and seed variants there (the sensitivities); other N are not shown.
+        from regentime.planning.ring_steady import ring_fixed_points, ring_multiplier
+
+        def solve(idx):
+            o_r, j_r = ring_fixed_points(gm, path, np.full(idx.size, seed), idx + 1, period,
+                                         gm.stored_fluence(stars[0][idx]))
+            return o_r, j_r
+
+        top1 = int(np.nanargmax(nominal))
+        coarse = np.unique(np.concatenate([np.linspace(0, n_fit - 1, min(n_fit, 24)).astype(int),
+                                           [top1]]))
+        o_c, j_c = solve(coarse)
+        guess = np.interp(np.arange(n_fit), coarse, o_c)
+        fine = np.flatnonzero(guess >= 0.8 * o_c.max())
+        fine = np.union1d(fine, np.clip(coarse[np.argmax(o_c)] + np.arange(-3, 4), 0, n_fit - 1))
         if must is not None and 1 <= must <= n_fit:
-            cand = np.union1d(cand, [must - 1])
-    if cand.size:
+            fine = np.union1d(fine, [must - 1])
+        new = np.setdiff1d(fine, coarse)
+        o_f, j_f = solve(new) if new.size else (np.empty(0), np.empty((0, gm.grid.rings)))
+        ring_out = np.full(n_fit, np.nan)
+        ring_out[coarse], ring_out[new] = o_c, o_f
+        states = {int(k): j for k, j in zip(coarse, j_c)}
+        states.update({int(k): j for k, j in zip(new, j_f)})
+        outs = np.full(outs.shape, np.nan)  # shown only where the ring model was solved
+        outs[0] = ring_out
+        fine_states = np.array([states[int(k)] for k in fine])
+        # pump and seed variants (the sensitivities) where the steady rule looks: ≥ 90 % of the peak
+        band = fine[ring_out[fine] >= 0.9 * np.nanmax(ring_out)]
+        band_states = np.array([states[int(k)] for k in band])
+        nv = len(variants) - 1
+        rates = np.concatenate([np.full(band.size, gm.pump_rate * fp) for fp, _ in variants[1:]])
+        seeds_v = np.concatenate([np.full(band.size, seed * fs) for _, fs in variants[1:]])
+        o_v, _ = ring_fixed_points(replace(gm, pump_rate=rates), path, seeds_v, np.tile(band + 1, nv),
+                                   period, np.tile(band_states, (nv, 1)))
+        outs[1:, band] = o_v.reshape(nv, band.size)
+        slope = np.full(n_fit, np.nan)
+        slope[fine] = ring_multiplier(gm, path, np.full(fine.size, seed), fine + 1, period, fine_states)
+        ring_state = {int(k) + 1: j for k, j in states.items()}
+    elif cand.size:  # one-ring model: every N, polished on the exact shot map
         nv = len(variants)
         nn = np.tile(cand + 1, nv)
         rates = np.concatenate([np.full(cand.size, gm.pump_rate * fp) for fp, _ in variants])
@@ -196,17 +242,27 @@ def _continuous(cavity: Cavity, gm: GainModel, path: RoundTripPath, n: int, must
     with np.errstate(divide="ignore", invalid="ignore"):
         s_pump = (np.log(outs[1]) - np.log(outs[2])) / (np.log1p(d) - np.log1p(-d))
         s_seed = (np.log(outs[3]) - np.log(outs[4])) / (np.log1p(d) - np.log1p(-d))
-    return full(outs[0]), full(s_pump), full(s_seed), full(slope), n_fit
+    return full(outs[0]), full(s_pump), full(s_seed), full(slope), n_fit, ring_state
 
 
-def choose_dump(output: np.ndarray, s_pump: np.ndarray, s_seed: np.ndarray, rule) -> tuple[int, str]:
-    """Apply the dump rule to per-round-trip arrays (index = N, index 0 unused)."""
+def choose_dump(output: np.ndarray, s_pump: np.ndarray, s_seed: np.ndarray, rule,
+                stable=None) -> tuple[int, str]:
+    """Apply the dump rule to per-round-trip arrays (index = N, index 0 unused).
+
+    ``stable`` (optional, per N): False where the shot-to-shot steady state is not period 1;
+    ``auto`` and ``steady`` then choose among the period-1 round trips (the plan uses period 1,
+    DESIGN.md), unless there is none.
+    """
     valid = np.isfinite(output)
     valid[0] = False
+    if stable is not None and not isinstance(rule, (int, np.integer)):
+        ok = valid & np.asarray(stable, dtype=bool)
+        if ok.any():
+            valid = ok
     if isinstance(rule, (int, np.integer)) and not isinstance(rule, bool):
         return int(rule), "given"
     out = np.where(valid, output, -np.inf)
-    peak = int(np.argmax(out))
+    peak = int(np.argmax(out))  # the best allowed round trip
     if rule == "steady":
         noise = np.sqrt(s_pump ** 2 + s_seed ** 2)
         ok = valid & (out >= 0.9 * out[peak]) & np.isfinite(noise)
@@ -229,9 +285,11 @@ def plan_buildup(cavity: Cavity, optics: CavityOptics, switching_efficiency: flo
     if given:
         n = max(n, given + 10)
     slope = shots = None
+    ring_state: dict = {}
     while True:
         if continuous:
-            output, s_pump, s_seed, slope, n_fit = _continuous(cavity, gm, path, n, must=given)
+            output, s_pump, s_seed, slope, n_fit, ring_state = _continuous(cavity, gm, path, n, must=given,
+                                                                           exact_rings=False)
         else:
             res, output, s_pump, s_seed = _pulsed(cavity, gm, path, n)
             n_fit = n
@@ -240,27 +298,50 @@ def plan_buildup(cavity: Cavity, optics: CavityOptics, switching_efficiency: flo
         if (peak < 0.8 * n_fit and past_plateau) or n >= _MAX_SPAN or n_fit < n:
             break
         n *= 2
+    if continuous and gm.grid.rings > 1:  # the span is set: now the exact ring-model steady states
+        output, s_pump, s_seed, slope, n_fit, ring_state = _continuous(cavity, gm, path, n, must=given)
+        peak = int(np.nanargmax(np.where(np.arange(output.size) >= 1, output, np.nan)))
     n_top = output.size - 1
     if given and given > n_top:
         from regentime.errors import InputError
 
         raise InputError("dump", given, f"a round trip that fits between shots (at most {n_top} "
                          f"round trips of {optics.round_trip_time * 1e9:.3f} ns at this repetition rate)")
-    dump, rule = choose_dump(output, s_pump, s_seed, cavity.dump if given is None else given)
+    stable = None
+    if continuous:
+        with np.errstate(invalid="ignore"):
+            stable = ~(np.abs(slope) >= 1.0)  # unknown (NaN) counts as allowed
+    dump, rule = choose_dump(output, s_pump, s_seed, cavity.dump if given is None else given, stable)
     if continuous:
         # the operating point: the build-up from the steady-state stored energy for this N
         period = 1.0 / cavity.repetition_rate
-        x_star, sl, _ = steady.fixed_points(gm, path, np.array([cavity.seed.energy]), np.array([dump]), period)
-        stored0 = float(x_star[0])
-        if abs(sl[0]) >= 1.0:
-            shots = steady.iterate_shots(gm, path, cavity.seed.energy, dump, period)
+        seed = cavity.seed.energy
+        j_star = ring_state.get(dump)
+        if gm.grid.rings > 1 and j_star is None:  # a round trip outside the scanned set
+            from regentime.planning.ring_steady import ring_fixed_points, ring_multiplier
+
+            x1, _, _ = steady.fixed_points(gm, path, np.array([seed]), np.array([dump]), period)
+            o_r, j_r = ring_fixed_points(gm, path, np.array([seed]), np.array([dump]), period,
+                                         gm.stored_fluence(x1))
+            j_star, output[dump] = j_r[0], o_r[0]
+            slope[dump] = ring_multiplier(gm, path, np.array([seed]), np.array([dump]), period, j_r)[0]
+        if j_star is not None:
+            stored0 = float(gm.stored_in(j_star))
+            multiplier = slope[dump]
+        else:
+            x_star, sl, _ = steady.fixed_points(gm, path, np.array([seed]), np.array([dump]), period)
+            stored0, multiplier = float(x_star[0]), sl[0]
+        if abs(multiplier) >= 1.0:
+            shots = steady.iterate_shots(gm, path, seed, dump, period)
         else:
             shots = steady.ShotSequence(1, np.array([output[dump]]), float(output[dump]),
                                         float(output[dump]), float(output[dump]))
-        res = simulate_buildup(replace(gm, stored_energy=stored0), path, cavity.seed.energy, stored0, n_top)
+        res = simulate_buildup(replace(gm, stored_energy=stored0), path, seed, stored0, n_top,
+                               stored_fluence=j_star)
     else:
-        stored0 = gm.stored_energy
+        stored0, j_star = gm.stored_energy, None
     n_shown = int(min(n_top, max(dump, peak) + max(10, (max(dump, peak) + 1) // 2)))
     return BuildupPlan(optics, gm, path, res, dump, rule, peak, output, s_pump, s_seed, stored0,
                        continuous, slope, shots, net_gain_ok=bool(net_log > 0), n_shown=n_shown,
-                       repetition_rate=cavity.repetition_rate)
+                       repetition_rate=cavity.repetition_rate,
+                       injection_state=j_star if continuous else None)

@@ -275,7 +275,7 @@ class _History:
 def _history(cavity: Cavity, buildup, t_inj: float, t_ca: float) -> _History:
     gm, path = buildup.gain, buildup.path
     n = buildup.dump_round_trip
-    j = gm.stored_fluence(buildup.stored_at_injection)
+    j = buildup.stored_fluence_at_injection()
     e = cavity.seed.energy * path.reflection_s
     energies, backs, js = [e], [], [j]
     for _ in range(n):

@@ -124,7 +124,7 @@ def inputs_from_plan(plan) -> BuildupInputs:
     rings = None
     if grid.rings > 1:
         area = gm.area
-        j_st = gm.stored_fluence(b.stored_at_injection)
+        j_st = b.stored_fluence_at_injection()
         j_eq = gm.stored_fluence(gm.pump_rate * gm.tau)
         rings = Rings(u=np.asarray(grid.mode) * area, v=np.asarray(grid.area) / area,
                       p=np.asarray(j_st) / gm.j_sat, o=float(gm.j_tr / gm.j_sat),
