@@ -257,6 +257,8 @@ def parse_quantity(value: Any, dimension: str, path: str = "") -> float:
         if unit == "%" and dimension == "ratio":
             return float(Decimal(number_text).scaleb(-2))  # 99.9 % -> 0.999 exactly rounded
         if unit == "dB" and dimension == "ratio_or_db":
+            if abs(number) > 3000.0:  # 10^300: beyond any float; range checks name the key
+                raise InputError(path, value, f"a ratio in dB between -3000 and 3000; {describe(dimension)}")
             return 10.0 ** (number / 10.0)
         allowed = {"ratio": "no unit or '%'", "ratio_or_db": "no unit or 'dB'"}.get(
             dimension, "no unit")
