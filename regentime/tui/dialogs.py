@@ -48,7 +48,26 @@ class ConfirmScreen(ModalScreen[str]):
         self.dismiss(self.answers[-1][0])
 
 
-class PathScreen(ModalScreen[Optional[str]]):
+class _FormDialog:
+    """OK / Cancel handling shared by the dialogs with input boxes: enter or OK calls
+    ``_done()``, Cancel or escape dismisses with None."""
+
+    def on_input_submitted(self, event: Input.Submitted) -> None:
+        event.stop()
+        self._done()
+
+    def on_button_pressed(self, event: Button.Pressed) -> None:
+        event.stop()
+        if event.button.id == "ok":
+            self._done()
+        else:
+            self.dismiss(None)
+
+    def action_cancel(self) -> None:
+        self.dismiss(None)
+
+
+class PathScreen(_FormDialog, ModalScreen[Optional[str]]):
     """Ask for a file name (save as, export); dismisses with it, or None on escape."""
 
     DEFAULT_CSS = _CSS.format(name="PathScreen")
@@ -70,23 +89,10 @@ class PathScreen(ModalScreen[Optional[str]]):
                 yield Button("OK", id="ok", variant="primary")
                 yield Button("Cancel", id="cancel")
 
-    def on_input_submitted(self, event: Input.Submitted) -> None:
-        event.stop()
-        self._done()
-
-    def on_button_pressed(self, event: Button.Pressed) -> None:
-        event.stop()
-        if event.button.id == "ok":
-            self._done()
-        else:
-            self.dismiss(None)
-
     def _done(self) -> None:
         text = self.query_one("#path", Input).value.strip()
         self.dismiss(text or None)
 
-    def action_cancel(self) -> None:
-        self.dismiss(None)
 
 
 class KindScreen(ModalScreen[Optional[str]]):
@@ -114,7 +120,7 @@ class KindScreen(ModalScreen[Optional[str]]):
         self.dismiss(None)
 
 
-class TraceScreen(ModalScreen[Optional[tuple]]):
+class TraceScreen(_FormDialog, ModalScreen[Optional[tuple]]):
     """Ask for a photodiode trace file and, optionally, its channel; dismisses with
     (path, channel or None), or None on escape."""
 
@@ -140,21 +146,8 @@ class TraceScreen(ModalScreen[Optional[tuple]]):
                 yield Button("Load", id="ok", variant="primary")
                 yield Button("Cancel", id="cancel")
 
-    def on_input_submitted(self, event: Input.Submitted) -> None:
-        event.stop()
-        self._done()
-
-    def on_button_pressed(self, event: Button.Pressed) -> None:
-        event.stop()
-        if event.button.id == "ok":
-            self._done()
-        else:
-            self.dismiss(None)
-
     def _done(self) -> None:
         path = self.query_one("#path", Input).value.strip()
         channel = self.query_one("#channel", Input).value.strip()
         self.dismiss((path, channel or None) if path else None)
 
-    def action_cancel(self) -> None:
-        self.dismiss(None)
