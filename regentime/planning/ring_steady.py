@@ -57,7 +57,7 @@ def ring_fixed_points(gm: GainModel, path: RoundTripPath, seeds, ns, period: flo
             with np.errstate(all="ignore"):
                 lam = np.einsum("br,br->b", d, d_prev) / np.einsum("br,br->b", d_prev, d_prev)
             if lam_prev is not None:
-                steady = (lam > 0) & (lam < 0.999) & (np.abs(lam - lam_prev) < 0.01 * (1 - lam))
+                steady = (lam > 0) & (lam < 0.999) & (np.abs(lam - lam_prev) < 0.05 * (1 - lam))
                 if steady.any():
                     ext = np.clip(x[active] + d * (lam / (1 - lam))[:, None], 0.0, None)
                     x[active] = np.where(steady[:, None], ext, x[active])
