@@ -28,15 +28,7 @@ TI = ROOT / "cavities" / "ti_sapphire_1khz.yaml"
 ND = ROOT / "cavities" / "nd_ylf_ps_10hz.yaml"
 
 
-def _with(cavity, extinction=None, contrast=None):
-    els = []
-    for e in cavity.elements:
-        if extinction is not None and isinstance(e, Polarizer):
-            e = replace(e, extinction_ratio=extinction)
-        if contrast is not None and isinstance(e, PockelsCell):
-            e = replace(e, contrast=contrast)
-        els.append(e)
-    return replace(cavity, elements=tuple(els))
+_with = pcon._with  # the planner's own "same cavity, other ER/contrast"
 
 
 def _ideal(cavity):

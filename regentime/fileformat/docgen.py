@@ -53,7 +53,7 @@ def render() -> str:
     lines += _table("top level", TOP, "")
     for key, section in TOP.sections.items():
         if key == "cables":
-            lines += [f"### `cables`", "", _cell(section.help[0].upper() + section.help[1:])
+            lines += ["### `cables`", "", _cell(section.help[0].upper() + section.help[1:])
                       + ". Keys: " + ", ".join(f"`{k}`" for k in section.sections)
                       + "; each is a cable (below).", ""]
             continue

@@ -19,7 +19,7 @@ Engineering, ch. 4; Siegman, Lasers, ch. 10.
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field, replace
+from dataclasses import dataclass, field
 
 import numpy as np
 
@@ -321,5 +321,3 @@ def shot_every_n(gm: GainModel, path: RoundTripPath, seed_energy, stored_energy,
         nxt[k] = gm.stored_in(j_eq + (j_after - j_eq) * np.exp(-rest / gm.tau))
     return out, nxt
 
-
-_apply = apply_ops  # former private name, kept for callers written against it

@@ -5,7 +5,7 @@ No I/O, no printing; SI units (s, J, J/m²).  The planning stage
 holds the equations it uses:
 
 - following a pulse through a sequence of round-trip operations with the gain that is left
-  (Frantz–Nodvik at every crossing of the crystal, via :func:`regentime.physics.buildup._apply`),
+  (Frantz–Nodvik at every crossing of the crystal, via :func:`regentime.physics.buildup.apply_ops`),
   and the recovery of the stored fluence between crossings;
 - the polarisation bookkeeping at the polarizer's reflected (in/out) port;
 - the transmission of an external pulse-cleaning cell between crossed polarizers while its
@@ -23,7 +23,7 @@ import math
 
 import numpy as np
 
-from regentime.physics.buildup import GainModel, apply_ops as _apply
+from regentime.physics.buildup import GainModel, apply_ops
 
 _RAMP_10_90 = 0.8  # a linear ramp's 10-90 % time is 0.8 of its 0-100 % time
 
@@ -54,7 +54,7 @@ def follow(ops, energy: float, j_st, gm: GainModel):
     Returns ``(energy_out, j_st_after)``.  Valid while the pulse is much shorter than the
     upper-state lifetime.
     """
-    e, j, _, _ = _apply(ops, np.asarray(float(energy)), np.asarray(j_st, dtype=float), gm, False)
+    e, j, _, _ = apply_ops(ops, np.asarray(float(energy)), np.asarray(j_st, dtype=float), gm, False)
     return float(e), j
 
 

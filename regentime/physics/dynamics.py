@@ -36,7 +36,7 @@ from typing import Callable, Optional
 
 import numpy as np
 
-from regentime.physics.buildup import GainModel, RoundTripPath, _apply, shot
+from regentime.physics.buildup import GainModel, RoundTripPath, apply_ops, shot
 
 GRID_NODES = 2049  # spline nodes in u; the measured midpoint error is ~1e-9 for typical regens
 _LOG_FLOOR = 1e-300  # guard for ln of an output energy that underflowed (never seen in practice)
@@ -132,10 +132,10 @@ def build_tables(gm: GainModel, path: RoundTripPath, seed_energy, pump_rate, n_v
     want = {int(n): i for i, n in enumerate(ns)}
     safe_eq = np.where(eq > 0, eq, 1.0)[:, None]
     for k in range(1, int(ns[-1]) + 1):
-        energy, j_st, _, _ = _apply(path.ops, energy, j_st, gm, False)
+        energy, j_st, _, _ = apply_ops(path.ops, energy, j_st, gm, False)
         j_st = j_eq + (j_st - j_eq) * decay
         if k in want:
-            e_out, j_after, _, _ = _apply(path.out_ops, energy, j_st, gm, False)
+            e_out, j_after, _, _ = apply_ops(path.out_ops, energy, j_st, gm, False)
             idx = want[k]
             lout[:, idx] = np.log(np.maximum(e_out * out_factor, _LOG_FLOOR))
             rem[:, idx] = gm.stored_in(j_after) / safe_eq

@@ -197,7 +197,7 @@ def find_window(ev: SwitchEvent, rise: float, shape: str, fwhm: float,
     """The range of 50 % edge times with share ≥ threshold × (ideal instant switch's share).
 
     Grid of ``_GRID`` points over the gap widened by the edge and pulse extents, then
-    bisection of both ends to ``_BISECT_TOL``.  The run of the grid that holds the best
+    refinement of both ends to ``_BISECT_TOL``.  The run of the grid that holds the best
     point is taken (there is one run for any edge shape used here).
     """
     a, b = ev.gap
@@ -249,19 +249,6 @@ def _refine(f, bad: float, good: float) -> float:
     return good
 
 
-def _bisect(f, bad: float, good: float) -> float:
-    """Boundary between a point where f < 0 (bad) and one where f ≥ 0 (good)."""
-    for _ in range(80):
-        if abs(good - bad) <= _BISECT_TOL:
-            break
-        m = 0.5 * (bad + good)
-        if f(m) >= 0.0:
-            good = m
-        else:
-            bad = m
-    return good
-
-
 def window_exists(ev: SwitchEvent, rise: float, shape: str, fwhm: float,
                   threshold: float = THRESHOLD) -> bool:
     """Quick test: does the edge centred in the gap reach the threshold?  (The best edge time
@@ -272,36 +259,33 @@ def window_exists(ev: SwitchEvent, rise: float, shape: str, fwhm: float,
     return real >= threshold * ideal
 
 
-def largest_rise_time(ev: SwitchEvent, rise: float, shape: str, fwhm: float) -> float:
-    """Longest 10–90 % time (s) that still gives a window (bisection, 1 % steps)."""
-    lo, hi = 0.0, rise
-    if not window_exists(ev, 0.0, shape, fwhm):
-        return 0.0
+def _largest_passing(passes, hi: float) -> float:
+    """Largest x in [0, hi] with passes(x) true, for a predicate true at 0 and false above
+    some threshold (bisection to 0.5 % of hi)."""
+    lo = 0.0
     for _ in range(30):
-        if hi - lo <= 0.005 * rise:
+        if hi - lo <= 0.005 * hi:
             break
         m = 0.5 * (lo + hi)
-        if window_exists(ev, m, shape, fwhm):
+        if passes(m):
             lo = m
         else:
             hi = m
     return lo
+
+
+def largest_rise_time(ev: SwitchEvent, rise: float, shape: str, fwhm: float) -> float:
+    """Longest 10–90 % time (s) that still gives a window (bisection, 1 % steps)."""
+    if not window_exists(ev, 0.0, shape, fwhm):
+        return 0.0
+    return _largest_passing(lambda r: window_exists(ev, r, shape, fwhm), rise)
 
 
 def longest_pulse(ev: SwitchEvent, rise: float, shape: str, fwhm: float) -> float:
     """Longest pulse FWHM (s) that still gives a window with this edge (0 if none)."""
     if not window_exists(ev, rise, shape, 0.0):
         return 0.0
-    lo, hi = 0.0, fwhm
-    for _ in range(30):
-        if hi - lo <= 0.005 * fwhm:
-            break
-        m = 0.5 * (lo + hi)
-        if window_exists(ev, rise, shape, m):
-            lo = m
-        else:
-            hi = m
-    return lo
+    return _largest_passing(lambda w: window_exists(ev, rise, shape, w), fwhm)
 
 
 def extra_gap_needed(ev: SwitchEvent, rise: float, shape: str, fwhm: float,

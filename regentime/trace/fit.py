@@ -227,7 +227,6 @@ def fit_buildup(amplitudes, sigma: float, inputs: BuildupInputs = BuildupInputs(
             x, _ = envelope(xs, g0, 1.0 - loss, m + n + extra, ops, decay, g_eq, rings)
             return np.exp(ls) * x[m:]
 
-        names = ["initial_log_gain", "round_trip_loss", "log_scale"] + (["log_seed"] if fit_seed else [])
         starts = []
         for loss in _loss_grid(loss0):
             g0 = (np.log(r_est) - np.log1p(-loss)) / npass
@@ -245,7 +244,6 @@ def fit_buildup(amplitudes, sigma: float, inputs: BuildupInputs = BuildupInputs(
             x, _ = envelope(np.exp(p[2]), p[0], 1.0 - p[1], n + extra, ops, decay, g_eq, rings)
             return np.exp(p[3]) * x
 
-        names = ["start_log_gain", "round_trip_loss", "log_start_energy", "log_scale"]
         # the first measured pulse has at least the injected energy (it has grown since)
         lx_min = np.log(x_seed) if x_seed else np.log(_X_MIN)
         starts = _free_starts(a, r_est, loss0, npass, ops, decay, g_eq, rings, lx_min)

@@ -27,7 +27,6 @@ Errors raise :class:`regentime.errors.InputError` naming the file and the line.
 
 from __future__ import annotations
 
-import math
 import mmap
 import os
 import re
