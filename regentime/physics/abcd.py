@@ -1,0 +1,159 @@
+"""TEM00 mode of a two-mirror standing-wave cavity from ABCD ray matrices (SI numbers only).
+
+Ray vector (x, x') with x in m and x' in rad; every matrix has determinant 1 because
+crystals enter as reduced distances L/n (Siegman, Lasers, ch. 15.1).  The cavity is given
+as the sequence of items met going from end mirror 1 to end mirror 2 (spaces and thin
+lenses); a curved mirror of radius R (concave positive) acts on reflection as a thin lens
+f = R/2.  The round trip starts just after reflection at end mirror 1:
+
+    M = L1 · (reversed items) · L2 · (items),   half_trace m = (A + D)/2,
+
+stable when |m| < 1 (Kogelnik & Li, Appl. Opt. 5, 1550 (1966)).  The self-consistent beam
+parameter then follows from 1/q = (D − A)/(2B) − i·sqrt(1 − m²)/|B| and the 1/e² radius
+from w² = λ/(π·Im(−1/q)).  Valid for paraxial rays and thin lenses; λ is the vacuum
+wavelength because the reduced distances already carry the index.
+
+References: Kogelnik & Li, Appl. Opt. 5, 1550 (1966); Siegman, Lasers (1986), ch. 15, 19;
+Innocenzi et al., Appl. Phys. Lett. 56, 1831 (1990) for the end-pumped thermal lens.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+Matrix = tuple[float, float, float, float]  # (A, B, C, D)
+
+IDENTITY: Matrix = (1.0, 0.0, 0.0, 1.0)
+
+
+def space(distance: float) -> Matrix:
+    """Free propagation over ``distance`` (m, ≥ 0; a reduced distance L/n inside a medium).
+
+    Matrix [[1, d], [0, 1]] (Siegman, Lasers, ch. 15.1).
+    """
+    return (1.0, distance, 0.0, 1.0)
+
+
+def thin_lens(focal_length: float) -> Matrix:
+    """Thin lens of focal length f (m; positive converging, ``math.inf`` for none).
+
+    Matrix [[1, 0], [−1/f, 1]] (Siegman, Lasers, ch. 15.1); valid while the lens is thin
+    compared with the distances around it.
+    """
+    return (1.0, 0.0, -1.0 / focal_length, 1.0)
+
+
+def interface(n1: float, n2: float) -> Matrix:
+    """Refraction at a flat interface from index n1 to n2 (real angles, not reduced).
+
+    Matrix [[1, 0], [0, n1/n2]] (Siegman, Lasers, ch. 15.1).  Used to check that a slab of
+    length L and index n equals a reduced distance L/n.
+    """
+    return (1.0, 0.0, 0.0, n1 / n2)
+
+
+def mirror_focal_lengths(radius: float, angle_of_incidence: float = 0.0) -> tuple[float, float]:
+    """Equivalent thin-lens focal lengths (tangential, sagittal) of a mirror on reflection.
+
+    f_t = R·cosθ/2, f_s = R/(2·cosθ); R in m, concave positive, ``math.inf`` for flat;
+    θ the angle of incidence in rad, 0 ≤ θ < π/2 (Kogelnik, Ippen, Dienes & Shank,
+    IEEE J. Quantum Electron. 8, 373 (1972); Siegman, Lasers, ch. 15.3).
+    """
+    c = math.cos(angle_of_incidence)
+    return radius * c / 2.0, radius / (2.0 * c)
+
+
+def thermal_focal_length(
+    heat_power: float, conductivity: float, dn_dt: float, pump_radius: float
+) -> float:
+    """Thermal-lens focal length of an end-pumped rod (m).
+
+    f = π·K·w_p² / (P_heat · dn/dT) with K the thermal conductivity (W/(m·K)), w_p the pump
+    radius (m), P_heat the heat deposited (W) and dn/dT (1/K); end stresses and bulging are
+    neglected.  Innocenzi, Yura, Fincher & Fields, Appl. Phys. Lett. 56, 1831 (1990);
+    Koechner, Solid-State Laser Engineering, ch. 7.  Returns ``math.inf`` for no heat.
+    """
+    if heat_power * dn_dt == 0.0:
+        return math.inf
+    return math.pi * conductivity * pump_radius**2 / (heat_power * dn_dt)
+
+
+def multiply(*matrices: Matrix) -> Matrix:
+    """Product M1·M2·…·Mk (the ray meets Mk first)."""
+    a, b, c, d = IDENTITY
+    for e, f, g, h in matrices:
+        a, b, c, d = a * e + b * g, a * f + b * h, c * e + d * g, c * f + d * h
+    return (a, b, c, d)
+
+
+@dataclass(frozen=True)
+class Item:
+    """One item of the half cavity: a space (``distance`` in m, reduced) or a thin lens.
+
+    ``name`` labels the point where the radius is reported (the item's end for a space,
+    the lens itself for a lens).
+    """
+
+    name: str
+    distance: float = 0.0
+    focal_length: float = math.inf
+
+    def matrix(self) -> Matrix:
+        if math.isinf(self.focal_length):
+            return space(self.distance)
+        return multiply(thin_lens(self.focal_length), space(self.distance))
+
+
+@dataclass(frozen=True)
+class Mode:
+    """Self-consistent TEM00 mode of one plane.
+
+    half_trace: (A+D)/2 of the round trip from end mirror 1; stable: |half_trace| < 1;
+    radii: 1/e² radius (m) after each item of the half cavity, keyed by item name, plus
+    ``"end mirror 1"`` (NaN everywhere when unstable).
+    """
+
+    half_trace: float
+    stable: bool
+    radii: tuple[tuple[str, float], ...]
+
+
+def round_trip(items: tuple[Item, ...], f_end1: float, f_end2: float) -> Matrix:
+    """Round-trip matrix starting just after reflection at end mirror 1 (see module text)."""
+    forward = [it.matrix() for it in items]
+    backward = [multiply(space(it.distance), thin_lens(it.focal_length)) for it in items]
+    ms = [thin_lens(f_end1)] + backward + [thin_lens(f_end2)] + forward[::-1]
+    return multiply(*ms)
+
+
+def cavity_mode(items: tuple[Item, ...], f_end1: float, f_end2: float, wavelength: float) -> Mode:
+    """Solve the cavity mode: half trace, stability and the 1/e² radius after each item.
+
+    f_end1, f_end2: end-mirror focal lengths (R/2, m; ``math.inf`` for flat);
+    wavelength: vacuum wavelength λ (m).  Equations in the module docstring
+    (Kogelnik & Li, Appl. Opt. 5, 1550 (1966)).
+    """
+    a, b, c, d = round_trip(items, f_end1, f_end2)
+    m = (a + d) / 2.0
+    stable = abs(m) < 1.0 and b != 0.0
+    if not stable:
+        nan = math.nan
+        return Mode(m, False, (("end mirror 1", nan),) + tuple((it.name, nan) for it in items))
+    inv_q = complex((d - a) / (2.0 * b), -math.sqrt(1.0 - m * m) / abs(b))
+    q = 1.0 / inv_q
+    radii = [("end mirror 1", _radius(q, wavelength))]
+    for it in items:
+        q = _propagate(q, it.matrix())
+        radii.append((it.name, _radius(q, wavelength)))
+    return Mode(m, True, tuple(radii))
+
+
+def _propagate(q: complex, mat: Matrix) -> complex:
+    a, b, c, d = mat
+    return (a * q + b) / (c * q + d)
+
+
+def _radius(q: complex, wavelength: float) -> float:
+    """w = sqrt(λ / (π · Im(−1/q)))  (Siegman, Lasers, ch. 17)."""
+    return math.sqrt(wavelength / (math.pi * (-(1.0 / q).imag)))

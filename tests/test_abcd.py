@@ -1,0 +1,92 @@
+"""Cavity mode from ABCD matrices checked against closed forms from the literature."""
+
+import math
+
+import pytest
+
+from regentime.physics.abcd import (
+    Item,
+    cavity_mode,
+    interface,
+    mirror_focal_lengths,
+    multiply,
+    space,
+    thermal_focal_length,
+)
+
+LAMBDA = 1030e-9
+
+
+def test_two_mirror_resonator_against_kogelnik_li():
+    # Kogelnik & Li, Appl. Opt. 5, 1550 (1966), eqs. for a two-mirror resonator:
+    # g_i = 1 − L/R_i, half trace 2·g1·g2 − 1, w1² = (λL/π)·sqrt(g2 / (g1(1 − g1 g2))).
+    L, r1, r2 = 0.8, 2.0, 1.5
+    g1, g2 = 1 - L / r1, 1 - L / r2
+    mode = cavity_mode((Item("gap", L),), r1 / 2, r2 / 2, LAMBDA)
+    assert mode.stable
+    assert mode.half_trace == pytest.approx(2 * g1 * g2 - 1, rel=1e-12)
+    w1 = math.sqrt(LAMBDA * L / math.pi * math.sqrt(g2 / (g1 * (1 - g1 * g2))))
+    w2 = math.sqrt(LAMBDA * L / math.pi * math.sqrt(g1 / (g2 * (1 - g1 * g2))))
+    radii = dict(mode.radii)
+    assert radii["end mirror 1"] == pytest.approx(w1, rel=1e-9)
+    assert radii["gap"] == pytest.approx(w2, rel=1e-9)
+
+
+@pytest.mark.parametrize("length,stable", [(0.5, True), (1.9, True), (2.1, False), (4.5, False)])
+def test_g_parameter_stability(length, stable):
+    # Kogelnik & Li (1966): stable when 0 < g1·g2 < 1; here R1 = R2 = 1 m, so 0 < L < 2 m.
+    g = 1 - length / 1.0
+    assert (0 < g * g < 1) == stable
+    assert cavity_mode((Item("gap", length),), 0.5, 0.5, LAMBDA).stable == stable
+
+
+def test_flat_concave_waist_closed_form():
+    # Flat–concave cavity: the waist sits on the flat mirror, w0² = (λ/π)·sqrt(L(R − L))
+    # (Siegman, Lasers, ch. 19.1).
+    L, R = 0.3, 1.0
+    mode = cavity_mode((Item("gap", L),), math.inf, R / 2, LAMBDA)
+    w0 = math.sqrt(LAMBDA / math.pi * math.sqrt(L * (R - L)))
+    assert dict(mode.radii)["end mirror 1"] == pytest.approx(w0, rel=1e-9)
+
+
+def test_thin_lens_in_flat_flat_cavity():
+    # Flat – d – lens f – d – flat: by symmetry the beam curvature at the lens is 2f, so
+    # z_R² = d(2f − d) and w0² = (λ/π)·sqrt(d(2f − d)) on the flat mirrors
+    # (Gaussian-beam curvature R(z) = z(1 + z_R²/z²), Siegman, Lasers, ch. 17).
+    d, f = 0.4, 0.5
+    items = (Item("arm 1", d), Item("lens", 0.0, f), Item("arm 2", d))
+    mode = cavity_mode(items, math.inf, math.inf, LAMBDA)
+    w0 = math.sqrt(LAMBDA / math.pi * math.sqrt(d * (2 * f - d)))
+    radii = dict(mode.radii)
+    assert radii["end mirror 1"] == pytest.approx(w0, rel=1e-9)
+    assert radii["arm 2"] == pytest.approx(w0, rel=1e-9)
+    # Beyond d = 2f the lens can no longer refocus: unstable.
+    assert not cavity_mode((Item("a", 1.1), Item("l", 0.0, f), Item("b", 1.1)),
+                           math.inf, math.inf, LAMBDA).stable
+
+
+def test_reduced_distance_equals_slab_with_refraction():
+    # A slab of index n and length L between two flat faces: interface(1→n)·space(L)·
+    # interface(n→1) = [[1, L/n], [0, 1]] (Siegman, Lasers, ch. 15.1).
+    n, L = 1.82, 0.02
+    slab = multiply(interface(n, 1.0), space(L), interface(1.0, n))
+    assert slab == pytest.approx(space(L / n), abs=1e-15)
+
+
+def test_fold_mirror_focal_lengths():
+    # Kogelnik et al., IEEE J. Quantum Electron. 8, 373 (1972): f_t = R cosθ/2, f_s = R/(2cosθ).
+    ft, fs = mirror_focal_lengths(1.0, math.radians(60))
+    assert ft == pytest.approx(0.25)
+    assert fs == pytest.approx(1.0)
+    assert mirror_focal_lengths(1.0) == (0.5, 0.5)
+
+
+def test_thermal_lens_formula():
+    # Innocenzi et al., Appl. Phys. Lett. 56, 1831 (1990): f = π K w_p² / (P_heat dn/dT).
+    # Nd:YAG values from memory: K ≈ 13 W/(m·K), dn/dT ≈ 7.3e-6 /K; 10 W heat, w_p = 0.5 mm
+    # gives π·13·2.5e-7/(10·7.3e-6) ≈ 0.13987 m.
+    f = thermal_focal_length(10.0, 13.0, 7.3e-6, 0.5e-3)
+    assert f == pytest.approx(0.13987, rel=1e-4)
+    assert thermal_focal_length(0.0, 13.0, 7.3e-6, 0.5e-3) == math.inf
+    # Doubling the heat halves the focal length.
+    assert thermal_focal_length(20.0, 13.0, 7.3e-6, 0.5e-3) == pytest.approx(f / 2)
