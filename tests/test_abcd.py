@@ -90,3 +90,34 @@ def test_thermal_lens_formula():
     assert thermal_focal_length(0.0, 13.0, 7.3e-6, 0.5e-3) == math.inf
     # Doubling the heat halves the focal length.
     assert thermal_focal_length(20.0, 13.0, 7.3e-6, 0.5e-3) == pytest.approx(f / 2)
+
+
+def _flat_flat_with_lens(d1, d2, f):
+    return cavity_mode((Item("arm 1", d1), Item("rod", 0.0, f), Item("arm 2", d2)),
+                       math.inf, math.inf, LAMBDA)
+
+
+def test_stable_range_two_zones_flat_flat_thermal_lens():
+    # Flat – d1 – lens f – d2 – flat has g1 = 1 − d2/f, g2 = 1 − d1/f (Magni, Appl. Opt. 25,
+    # 2039 (1986)); 0 < g1 g2 < 1 gives two zones in 1/f: (0, 1/max(d)) and
+    # (1/min(d), 1/d1 + 1/d2).  The thermal lens is 1/f = P_heat·dn/dT/(π K w_p²).
+    from regentime.physics.abcd import stable_ranges
+
+    d1, d2, k, dndt, wp = 0.3, 0.6, 13.0, 7.3e-6, 0.5e-3
+    per_watt = dndt / (math.pi * k * wp**2)  # 1/f per W of heat
+
+    def m(p):
+        return _flat_flat_with_lens(d1, d2, thermal_focal_length(p, k, dndt, wp)).half_trace
+
+    zones = stable_ranges(m, 1e-3, 40.0)
+    expected = [(1e-3, 1 / d2 / per_watt), (1 / d1 / per_watt, (1 / d1 + 1 / d2) / per_watt)]
+    assert len(zones) == 2
+    for (lo, hi), (elo, ehi) in zip(zones, expected):
+        assert lo == pytest.approx(elo, rel=1e-6)
+        assert hi == pytest.approx(ehi, rel=1e-6)
+
+
+def test_stable_range_none_when_never_stable():
+    from regentime.physics.abcd import stable_ranges
+
+    assert stable_ranges(lambda p: 1.5 + p, 0.0, 10.0) == ()

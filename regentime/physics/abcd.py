@@ -157,3 +157,47 @@ def _propagate(q: complex, mat: Matrix) -> complex:
 def _radius(q: complex, wavelength: float) -> float:
     """w = sqrt(λ / (π · Im(−1/q)))  (Siegman, Lasers, ch. 17)."""
     return math.sqrt(wavelength / (math.pi * (-(1.0 / q).imag)))
+
+
+def stable_ranges(
+    half_trace_at, low: float, high: float, samples: int = 400, rtol: float = 1e-9
+) -> tuple[tuple[float, float], ...]:
+    """Intervals of a parameter p (e.g. absorbed pump power, W) over which |m(p)| < 1.
+
+    ``half_trace_at(p)`` gives the half trace m = (A+D)/2 of the round trip at p; the
+    interval [low, high] is sampled at ``samples`` points and each edge refined by
+    bisection to a relative width ``rtol``.  A cavity with a thermal lens can have two
+    stability zones (Magni, Appl. Opt. 25, 107 (1986), citation from memory); zones narrower than one sample
+    step may be missed.  Returns the zones in increasing order, clipped to [low, high].
+    """
+
+    def inside(p: float) -> bool:
+        return abs(half_trace_at(p)) < 1.0
+
+    step = (high - low) / (samples - 1)
+    points = [low + i * step for i in range(samples)]
+    flags = [inside(p) for p in points]
+    zones: list[tuple[float, float]] = []
+    start = low if flags[0] else None
+    for i in range(1, samples):
+        if flags[i] != flags[i - 1]:
+            edge = _edge(inside, points[i - 1], points[i], flags[i - 1], rtol)
+            if flags[i]:
+                start = edge
+            else:
+                zones.append((start, edge))
+                start = None
+    if start is not None:
+        zones.append((start, high))
+    return tuple(zones)
+
+
+def _edge(inside, a: float, b: float, flag_a: bool, rtol: float) -> float:
+    """Bisect the stability edge between a and b (inside(a) == flag_a != inside(b))."""
+    while b - a > rtol * max(abs(a), abs(b), 1e-300):
+        mid = 0.5 * (a + b)
+        if inside(mid) == flag_a:
+            a = mid
+        else:
+            b = mid
+    return 0.5 * (a + b)
