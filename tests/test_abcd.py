@@ -98,9 +98,9 @@ def _flat_flat_with_lens(d1, d2, f):
 
 
 def test_stable_range_two_zones_flat_flat_thermal_lens():
-    # Flat – d1 – lens f – d2 – flat has g1 = 1 − d2/f, g2 = 1 − d1/f (Magni, Appl. Opt. 25,
-    # 2039 (1986)); 0 < g1 g2 < 1 gives two zones in 1/f: (0, 1/max(d)) and
-    # (1/min(d), 1/d1 + 1/d2).  The thermal lens is 1/f = P_heat·dn/dT/(π K w_p²).
+    # Flat – d1 – lens f – d2 – flat has g1 = 1 − d2/f, g2 = 1 − d1/f (equivalent-resonator
+    # g-parameters, Magni, Appl. Opt. 25, 107 (1986), citation from memory);
+    # 0 < g1 g2 < 1 gives two zones in 1/f: (0, 1/max(d)) and (1/min(d), 1/d1 + 1/d2).  The thermal lens is 1/f = P_heat·dn/dT/(π K w_p²).
     from regentime.physics.abcd import stable_ranges
 
     d1, d2, k, dndt, wp = 0.3, 0.6, 13.0, 7.3e-6, 0.5e-3
@@ -121,3 +121,14 @@ def test_stable_range_none_when_never_stable():
     from regentime.physics.abcd import stable_ranges
 
     assert stable_ranges(lambda p: 1.5 + p, 0.0, 10.0) == ()
+
+
+def test_near_edge_within_ten_percent():
+    # Warning rule (common practice): within 10 % of a zone's width from an edge.
+    from regentime.physics.abcd import near_edge
+
+    zones = ((0.0, 10.0), (20.0, 30.0))
+    assert near_edge(9.5, zones)
+    assert near_edge(20.5, zones)
+    assert not near_edge(5.0, zones)
+    assert not near_edge(15.0, zones)  # outside every zone: unstable, not "near"

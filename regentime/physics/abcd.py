@@ -167,8 +167,9 @@ def stable_ranges(
     ``half_trace_at(p)`` gives the half trace m = (A+D)/2 of the round trip at p; the
     interval [low, high] is sampled at ``samples`` points and each edge refined by
     bisection to a relative width ``rtol``.  A cavity with a thermal lens can have two
-    stability zones (Magni, Appl. Opt. 25, 107 (1986), citation from memory); zones narrower than one sample
-    step may be missed.  Returns the zones in increasing order, clipped to [low, high].
+    stability zones (Magni, Appl. Opt. 25, 107 (1986), citation from memory); zones
+    narrower than one sample step may be missed.  Returns the zones in increasing order,
+    clipped to [low, high].
     """
 
     def inside(p: float) -> bool:
@@ -190,6 +191,19 @@ def stable_ranges(
     if start is not None:
         zones.append((start, high))
     return tuple(zones)
+
+
+def near_edge(p: float, zones: tuple[tuple[float, float], ...], fraction: float = 0.1) -> bool:
+    """True when p lies inside a stability zone but within ``fraction`` of its width of an edge.
+
+    Zone edges as returned by :func:`stable_ranges` (same unit as p); fraction 0.1 is the
+    10 % margin of common practice.  False when p is outside every zone.
+    """
+    for lo, hi in zones:
+        if lo <= p <= hi:
+            margin = fraction * (hi - lo)
+            return p - lo < margin or hi - p < margin
+    return False
 
 
 def _edge(inside, a: float, b: float, flag_a: bool, rtol: float) -> float:
