@@ -100,7 +100,8 @@ def _flat_flat_with_lens(d1, d2, f):
 def test_stable_range_two_zones_flat_flat_thermal_lens():
     # Flat – d1 – lens f – d2 – flat has g1 = 1 − d2/f, g2 = 1 − d1/f (equivalent-resonator
     # g-parameters, Magni, Appl. Opt. 25, 107 (1986), citation from memory);
-    # 0 < g1 g2 < 1 gives two zones in 1/f: (0, 1/max(d)) and (1/min(d), 1/d1 + 1/d2).  The thermal lens is 1/f = P_heat·dn/dT/(π K w_p²).
+    # 0 < g1 g2 < 1 gives two zones in 1/f: (0, 1/max(d)) and (1/min(d), 1/d1 + 1/d2).
+    # The thermal lens is 1/f = P_heat·dn/dT/(π K w_p²).
     from regentime.physics.abcd import stable_ranges
 
     d1, d2, k, dndt, wp = 0.3, 0.6, 13.0, 7.3e-6, 0.5e-3
