@@ -133,3 +133,25 @@ def test_near_edge_within_ten_percent():
     assert near_edge(20.5, zones)
     assert not near_edge(5.0, zones)
     assert not near_edge(15.0, zones)  # outside every zone: unstable, not "near"
+
+
+def test_brewster_crystal_and_fold_give_elliptic_mode():
+    # Brewster plate: d_t = L/n³, d_s = L/n (Kogelnik et al., IEEE J. Quantum Electron. 8,
+    # 373 (1972)).  Each plane must equal the closed-form flat–concave waist
+    # w0² = (λ/π)·sqrt(L(R − L)) with its own reduced length and mirror focal length.
+    from regentime.physics.abcd import brewster_reduced_distances, two_plane_mode
+
+    n, crystal, air, r, theta = 1.76, 0.02, 0.25, 1.0, math.radians(10)
+    dt, ds = brewster_reduced_distances(crystal, n)
+    assert (dt, ds) == pytest.approx((crystal / n**3, crystal / n))
+    ft, fs = mirror_focal_lengths(r, theta)
+    mode = two_plane_mode((Item("rod", dt), Item("air", air)), (Item("rod", ds), Item("air", air)),
+                          (math.inf, math.inf), (ft, fs), LAMBDA)
+    assert mode.stable
+    w_t = math.sqrt(LAMBDA / math.pi * math.sqrt((dt + air) * (2 * ft - dt - air)))
+    w_s = math.sqrt(LAMBDA / math.pi * math.sqrt((ds + air) * (2 * fs - ds - air)))
+    name, big, ell = mode.radii[0]
+    assert name == "end mirror 1"
+    assert big == pytest.approx(max(w_t, w_s), rel=1e-9)
+    assert ell == pytest.approx(min(w_t, w_s) / max(w_t, w_s), rel=1e-9)
+    assert ell < 1.0

@@ -215,3 +215,44 @@ def _edge(inside, a: float, b: float, flag_a: bool, rtol: float) -> float:
         else:
             b = mid
     return 0.5 * (a + b)
+
+
+def brewster_reduced_distances(length: float, index: float) -> tuple[float, float]:
+    """Reduced distances (tangential, sagittal) of a Brewster-cut crystal of length L (m).
+
+    d_t = L/n³, d_s = L/n for the beam inside a plate at Brewster's angle, n the phase
+    index (Kogelnik, Ippen, Dienes & Shank, IEEE J. Quantum Electron. 8, 373 (1972)).
+    """
+    return length / index**3, length / index
+
+
+@dataclass(frozen=True)
+class TwoPlaneMode:
+    """Cavity mode in the tangential and sagittal planes.
+
+    radii: per reported point (name, larger 1/e² radius m, ellipticity = smaller/larger,
+    1 for a round beam); stable only when both planes are stable.
+    """
+
+    tangential: Mode
+    sagittal: Mode
+    stable: bool
+    radii: tuple[tuple[str, float, float], ...]
+
+
+def two_plane_mode(
+    tangential: tuple[Item, ...], sagittal: tuple[Item, ...],
+    f_end1: tuple[float, float], f_end2: tuple[float, float], wavelength: float,
+) -> TwoPlaneMode:
+    """Solve both planes (same item names in each; end focal lengths as (f_t, f_s), m).
+
+    Each plane as :func:`cavity_mode`; the larger radius and the ellipticity w_min/w_max
+    are reported per point (Siegman, Lasers, ch. 15.3, astigmatic resonators).
+    """
+    mt = cavity_mode(tangential, f_end1[0], f_end2[0], wavelength)
+    ms = cavity_mode(sagittal, f_end1[1], f_end2[1], wavelength)
+    rows = []
+    for (name, wt), (_, ws) in zip(mt.radii, ms.radii):
+        big = max(wt, ws)
+        rows.append((name, big, min(wt, ws) / big if big > 0 else math.nan))
+    return TwoPlaneMode(mt, ms, mt.stable and ms.stable, tuple(rows))
