@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import argparse
+import sys
 
 HELP = """Open a cavity file in the terminal planner: edit values, watch the build-up, the
 switch-out round trip, the Pockels-cell windows, the generator table and the contrast follow,
@@ -30,6 +31,9 @@ def run(args: argparse.Namespace) -> int:
 
     app = PlannerApp(path=args.file)
     code = app.run()
+    if app.autosaved:
+        print(f"regentime tui: stopped on an unexpected error; your unsaved edits are in "
+              f"{app.autosaved}", file=sys.stderr)
     if app.return_code not in (None, 0):  # Textual already showed what went wrong
         return int(app.return_code)
     return int(code or 0)

@@ -27,11 +27,12 @@ from regentime.fileformat.document import CavityDocument
 from regentime.planning.plan import CAUTION, CAUTION_SHORT
 from regentime.tui import view
 from regentime.tui.buildup_plot import BuildupPlot
-from regentime.tui.dialogs import ConfirmScreen, KindScreen, PathScreen
+from regentime.tui.dialogs import KindScreen
 from regentime.tui.editor import ParameterEditor, shown
 from regentime.tui.element_screen import ElementScreen
 from regentime.tui.elements import ElementList
 from regentime.tui.field_row import FieldRow
+from regentime.tui.file_actions import FileActions, _lines, _stamp, autosave_path  # noqa: F401
 from regentime.tui.help_screen import HelpScreen
 from regentime.tui.load_error_screen import LoadErrorScreen
 from regentime.tui.panels import ChecksPanel, ContrastPanel, TimingPanel, TracePanel
@@ -87,7 +88,7 @@ OTHER_KEYS = [
 ]
 
 
-class PlannerApp(TraceActions, App[int]):
+class PlannerApp(FileActions, TraceActions, App[int]):
     """Plan a regen interactively.  Give it a path (opened here) or a document; neither: demo."""
 
     CSS_PATH = "app.tcss"
@@ -113,6 +114,7 @@ class PlannerApp(TraceActions, App[int]):
         self.last_plan_seconds = 0.0
         self.watch_interval = watch_interval
         self._asking_disk = False
+        self.autosaved: Optional[str] = None
         self._plan_running = False
         self._plan_wanted: Optional[tuple] = None
 
@@ -505,145 +507,7 @@ class PlannerApp(TraceActions, App[int]):
             yield SystemCommand(description, f"key {key}",
                                 lambda a=action: self.run_action(a))
 
-    # ---- files -------------------------------------------------------------------------------
-    def action_save(self) -> None:
-        if self.doc is None:
-            return
-        if not self.doc.source:
-            self.action_save_as()
-            return
-        self._save(None)
 
-    def action_save_as(self) -> None:
-        if self.doc is None:
-            return
-        start = self.doc.source or "my-regen.yaml"
-        self.push_screen(PathScreen("Save the cavity file as:", start,
-                                    "YAML; the file's comments and key order are kept."),
-                         self._save_as_chosen)
-
-    def _save_as_chosen(self, path: Optional[str]) -> None:
-        if not path:
-            return
-        if os.path.exists(path) and os.path.realpath(path) != os.path.realpath(self.doc.source or ""):
-            self.push_screen(ConfirmScreen(f"{path} exists. Replace it?",
-                                           [("yes", "Replace"), ("no", "Cancel")]),
-                             lambda a: self._save(path) if a == "yes" else None)
-            return
-        self._save(path)
-
-    def _save(self, path: Optional[str], then_quit: bool = False) -> bool:
-        try:
-            written = self.doc.save(path)
-        except (InputError, OSError) as exc:
-            msg = exc.one_line() if isinstance(exc, InputError) else str(exc)
-            self.notify(f"not saved: {msg}", severity="error", timeout=10)
-            return False
-        self.saved_text = self.doc.text()
-        self.disk_stamp = _stamp(written)
-        self.path = written
-        self._update_title()
-        note = "" if not self.input_problems else " (note: the file has problems, see checks)"
-        self.notify(f"saved {written}{note}", severity="warning" if note else "information")
-        if then_quit:
-            self.exit(0)
-        return True
-
-    def action_export(self) -> None:
-        if self.plan is None:
-            self.notify("no valid plan to export yet", severity="warning")
-            return
-        from regentime.tui.exporting import FORMATS, default_name
-
-        hint = "The ending picks the format: " + ", ".join(f"{e} {w}" for e, w in FORMATS.items())
-        self.push_screen(PathScreen("Export to:", default_name(self.doc.source), hint),
-                         self._export_chosen)
-
-    def _export_chosen(self, path: Optional[str]) -> None:
-        if path and self.plan is not None:
-            self._export_worker(self.plan, path)
-
-    @work(thread=True, group="export", exit_on_error=False)
-    def _export_worker(self, plan, path: str) -> None:
-        from regentime.tui.exporting import export
-
-        try:
-            what = export(plan, path)
-        except InputError as exc:
-            self.call_from_thread(self.notify, f"not exported: {exc.one_line()}", severity="error")
-        except Exception as exc:  # noqa: BLE001 - shown to the user, never a crash
-            self.call_from_thread(self.notify, f"not exported: {type(exc).__name__}: {exc}",
-                                  severity="error")
-        else:
-            self.call_from_thread(self.notify, f"{what} written to {path}")
-
-    def action_reload(self) -> None:
-        if self.doc is None or not self.doc.source:
-            self.notify("the built-in demo has no file to reload", severity="warning")
-            return
-        if self.modified:
-            self.push_screen(ConfirmScreen("Reload the file from disk and drop your unsaved edits?",
-                                           [("reload", "Reload"), ("keep", "Keep my edits")]),
-                             lambda a: self.call_later(self._reload) if a == "reload" else None)
-            return
-        self.call_later(self._reload)
-
-    async def _reload(self) -> None:
-        try:
-            doc = CavityDocument.load(self.doc.source)
-        except (InputError, InputErrors) as exc:
-            self.disk_stamp = _stamp(self.doc.source)
-            self.notify("not reloaded: " + "; ".join(_lines(exc)), severity="error", timeout=10)
-            return
-        await self.open_document(doc)
-        self.notify(f"reloaded {doc.source}")
-
-    def _check_disk(self) -> None:
-        if self.doc is None or not self.doc.source or self._asking_disk:
-            return
-        stamp = _stamp(self.doc.source)
-        if stamp is None or stamp == self.disk_stamp:
-            return
-        self.disk_stamp = stamp
-        try:
-            with open(self.doc.source, encoding="utf-8") as fh:
-                on_disk = fh.read()
-        except (OSError, UnicodeDecodeError):
-            return
-        if on_disk in (self.saved_text, self.doc.text()):
-            return
-        if not self.modified:
-            self.call_later(self._reload)
-            return
-        self._asking_disk = True
-
-        def answer(a: Optional[str]) -> None:
-            self._asking_disk = False
-            if a == "reload":
-                self.call_later(self._reload)
-
-        self.push_screen(ConfirmScreen("The file changed on disk. Reload it and drop your unsaved "
-                                       "edits?", [("reload", "Reload"), ("keep", "Keep my edits")]),
-                         answer)
-
-    async def action_quit(self) -> None:
-        if not self.modified:
-            self.exit(0)
-            return
-        name = os.path.basename(self.doc.source) if self.doc.source else "the demo"
-
-        def answer(a: Optional[str]) -> None:
-            if a == "save":
-                if self.doc.source:
-                    self._save(None, then_quit=True)
-                else:
-                    self.action_save_as()
-            elif a == "discard":
-                self.exit(0)
-
-        self.push_screen(ConfirmScreen(f"{name} has unsaved changes. Save them before quitting?",
-                                       [("save", "Save and quit"), ("discard", "Quit without saving"),
-                                        ("cancel", "Cancel")]), answer)
 
 
 def _kinds() -> list[str]:
@@ -658,19 +522,3 @@ def _reason(exc: Exception) -> str:
         prefix = f"{exc.path}: "
         return text.split(prefix, 1)[1] if prefix in text and exc.path else text
     return str(exc)
-
-
-def _lines(exc: Exception) -> list[str]:
-    if isinstance(exc, InputErrors):
-        return [e.one_line() for e in exc.errors]
-    return [exc.one_line() if isinstance(exc, InputError) else str(exc)]
-
-
-def _stamp(path: Optional[str]) -> Optional[tuple]:
-    if not path:
-        return None
-    try:
-        st = os.stat(path)
-    except OSError:
-        return None
-    return (st.st_mtime_ns, st.st_size)
