@@ -15,7 +15,7 @@ from pathlib import Path
 
 import numpy as np
 import pytest
-from hypothesis import HealthCheck, given, settings
+from hypothesis import HealthCheck, example, given, settings
 from hypothesis import strategies as st
 
 from regentime import fileformat
@@ -105,3 +105,27 @@ def test_shipped_examples_create_no_energy(name):
     assert b.output_energy <= bound * (1 + _SLACK)
     if gm.pump_rate:
         assert b.output_energy * cav.repetition_rate <= gm.pump_rate + cav.seed.energy * cav.repetition_rate
+
+
+@settings(max_examples=8, deadline=None, derandomize=True,
+          suppress_health_check=[HealthCheck.too_slow])
+@given(**{**_VARIANT, "name": st.sampled_from(_CW), "rate_scale": st.floats(0.5, 2.0)})
+@example(name="yb_100khz_cw.yaml", profile="flat-top", pump_profile="flat-top", ratio=1.0, rings=4,
+         pump_scale=1.0, seed=3.761564301605137e-07, n=25, rate_scale=2.0)  # found by this test
+def test_ring_steady_state_is_a_fixed_point_within_the_pump_power(name, profile, pump_profile, ratio,
+                                                                   rings, pump_scale, seed, n, rate_scale):
+    """A reported steady output belongs to a state the next shot reproduces, and its average
+    power is at most the stored power R (plus the seed's); without one the output is NaN."""
+    from regentime.planning.ring_steady import ring_fixed_points
+
+    cav, gm, path = _variant(name, profile, pump_profile, ratio, rings, pump_scale)
+    period = rate_scale / cav.repetition_rate
+    n = max(1, min(n, int(0.9 * period / path.dt)))
+    j0 = gm.stored_fluence(np.array([gm.pump_rate * gm.tau]))
+    out, j_star = ring_fixed_points(gm, path, np.array([seed]), np.array([n]), period, j0)
+    if np.isnan(out[0]):
+        return
+    o, j_next = shot(gm, path, np.array([seed]), j_star, np.array([n]), period)
+    assert o[0] == pytest.approx(out[0], rel=1e-4)
+    assert gm.stored_in(j_next)[0] == pytest.approx(gm.stored_in(j_star)[0], rel=1e-4)
+    assert out[0] / period <= (gm.pump_rate + seed / period) * (1 + 1e-6)
