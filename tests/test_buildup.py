@@ -177,3 +177,17 @@ def test_low_rate_continuous_equals_full_storage():
     gm = b.gain
     single = simulate_buildup(gm, b.path, cav.seed.energy, gm.pump_rate * gm.tau, 40)
     assert b.output_energy == pytest.approx(single.output[40], rel=1e-6)
+
+
+def test_peak_fluence_is_the_gaussian_on_axis_value_for_both_profiles():
+    """TEM00 beam of 1/e² radius w: on-axis fluence 2E/(πw²) (Siegman, Lasers, ch. 17), also
+    when the extraction uses the flat-top mean fluence E/(πw²)."""
+    from regentime.physics.buildup import GainModel, apply_ops
+    from regentime.physics.gain import radial_grid
+
+    w, e = 0.5e-3, 2e-3
+    for profile in ("flat-top", "gaussian"):
+        grid = radial_grid(w, profile, w, "gaussian", 16)
+        gm = GainModel(j_sat=1e9, j_tr=0.0, tau=1e-3, grid=grid, stored_energy=0.0)
+        _, _, peak, _ = apply_ops(("gain",), np.array([e]), np.zeros((1, grid.rings)), gm, True)
+        assert peak[0] == pytest.approx(2 * e / (math.pi * w * w), rel=1e-9)

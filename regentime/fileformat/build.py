@@ -233,7 +233,7 @@ def _build(ck: Checker, data, top: dict, elements: list, source, default_name) -
                     pump_profile=gain.get("pump_profile", "gaussian"),
                     rings=gain.get("rings", 64)),
         pump=m.Pump(mode=pump["mode"], wavelength=pump["wavelength"],
-                    absorbed_fraction=pump["absorbed_fraction"], overlap=pump["overlap"],
+                    absorbed_fraction=pump["absorbed_fraction"], overlap=pump.get("overlap", 1.0),
                     energy=pump.get("energy"), power=pump.get("power"),
                     lead=pump.get("lead", 0.0), latency=pump.get("latency", 0.0)),
         elements=_elements_model(elements, air),

@@ -290,8 +290,10 @@ TOP = Section("", "top level", _fields(
            required=True, lo=200e-9, hi=5e-6),
         _f("absorbed_fraction", "ratio", "share of the pump absorbed in the crystal",
            required=True, lo=0.0, hi=1.0, lo_open=True),
-        _f("overlap", "ratio", "share of the absorbed pump stored inside the mode",
-           required=True, lo=0.0, hi=1.0, lo_open=True),
+        _f("overlap", "ratio", "share of the absorbed pump stored inside the mode (flat-top "
+           "profile); with profile: gaussian the share of the absorbed pump stored at all, the "
+           "radial profiles share it between the rings", default="100 %", lo=0.0, hi=1.0,
+           lo_open=True),
         _f("lead", "time", "seed injection this long after the pump light (pulsed; required "
            "there)", lo=0.0, hi=10e-3),
         _f("latency", "time", "pump trigger input to light out (pulsed)", default="0 s",

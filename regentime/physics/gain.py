@@ -70,7 +70,9 @@ class RadialGrid:
 
     ``area[i]`` (m²) of ring i; ``mode[i]`` the pulse fluence per joule of pulse energy
     (1/m², Σ mode·area = 1); ``pump[i]`` the stored fluence per joule stored (Σ pump·area = 1);
-    ``peak_factor`` = peak fluence · (π w²) / E (1 for flat-top, 2 for a Gaussian mode).
+    ``peak_factor`` = on-axis fluence · (π w²) / E = 2 for both profiles: the beam is the
+    cavity's TEM00 mode of 1/e² radius w, whose on-axis fluence is 2E/(πw²) (Siegman, Lasers,
+    ch. 17); ``flat-top`` only models the extraction with the mean fluence E/(πw²).
     """
 
     area: np.ndarray
@@ -86,7 +88,8 @@ class RadialGrid:
 
 def radial_grid(mode_radius: float, profile: str = "flat-top", pump_radius: float | None = None,
                 pump_profile: str = "gaussian", rings: int = 64) -> RadialGrid:
-    """Rings for the extraction.  Flat-top: one ring of area π w².
+    """Rings for the extraction.  Flat-top: one ring of area π w² (mean fluence E/(πw²) for
+    the gain; the damage and intensity use the on-axis 2E/(πw²), ``peak_factor``).
 
     Gaussian mode: F(r) = (2E/πw²) exp(−2r²/w²) sampled at the centres (in r²) of ``rings``
     equal-area rings out to r_max = 2·max(w, w_p) (0.03 % of the energy beyond, renormalised);
@@ -97,7 +100,7 @@ def radial_grid(mode_radius: float, profile: str = "flat-top", pump_radius: floa
     w = float(mode_radius)
     if profile == "flat-top":
         area = np.array([np.pi * w * w])
-        return RadialGrid(area, 1.0 / area, 1.0 / area, w, 1.0)
+        return RadialGrid(area, 1.0 / area, 1.0 / area, w, 2.0)
     wp = float(pump_radius if pump_radius is not None else w)
     r_max = 2.0 * max(w, wp)
     u_edges = np.linspace(0.0, r_max * r_max, rings + 1)

@@ -52,6 +52,12 @@ def run_checks(plan) -> list[Check]:
                          "net round-trip gain at injection is below 1 (single-pass log gain "
                          f"{b.result.log_gain[0]:.3f}, {b.path.gain_passes} gain passes, passive "
                          f"round-trip transmission {b.path.passive_transmission:.3f}): the pulse cannot build up"))
+    if cav.gain.profile == "gaussian" and cav.pump.overlap < 1.0:
+        out.append(Check("warning", "overlap",
+                         f"pump.overlap {cav.pump.overlap:g} with profile: gaussian: the radial mode "
+                         "and pump profiles already share the absorbed pump between the rings, so "
+                         "overlap is read as the share stored at all (not the mode overlap); use 1 "
+                         "unless part of the absorbed pump is lost"))
     peak_f = float(np.nanmax(b.result.peak_fluence[1:n + 1])) if n >= 1 else 0.0
     f_dmg = scaled_damage_fluence(medium.damage_fluence, medium.damage_duration, tau)
     text = (f"peak fluence in the crystal {peak_f / 1e4:.3g} J/cm² vs damage {f_dmg / 1e4:.3g} J/cm² "

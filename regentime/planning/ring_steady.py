@@ -22,6 +22,8 @@ _MAX_ITER = 600
 def ring_fixed_points(gm: GainModel, path: RoundTripPath, seeds, ns, period: float, j0):
     """Fixed points j* (B, R) of the ring-state shot map for a batch; returns ``(output, j*)``.
 
+    ``output`` is NaN for members without a period-1 fixed point within ``_MAX_ITER`` shots.
+
     ``gm.pump_rate`` may be an array (B,); ``seeds`` (B,) J; ``ns`` (B,) round trips; ``j0``
     (B, R) starting stored fluence per ring (J/m²), best the energy-only estimate.  Plain shot
     iteration, with the slowest mode removed by extrapolation once its ratio λ between shots
@@ -65,8 +67,10 @@ def ring_fixed_points(gm: GainModel, path: RoundTripPath, seeds, ns, period: flo
             lam_prev = lam
         d_prev = d
     else:
-        gm_a = replace(gm, pump_rate=rate[active])
-        out[active], _ = shot(gm_a, path, seeds[active], x[active], ns[active], period)
+        # not converged in _MAX_ITER shots: no period-1 state (a long relaxation cycle or
+        # irregular shots).  The last iterate is one shot of that sequence, not a steady
+        # output; reporting it every shot would create energy, so it is NaN.
+        out[active] = np.nan
     return out, x
 
 
