@@ -3,9 +3,9 @@
 from __future__ import annotations
 
 import argparse
-import os
 import sys
-import tempfile
+
+from regentime.atomic_write import write_atomic
 
 FORMATS = ("text", "json", "csv", "md")
 
@@ -30,52 +30,12 @@ def add_file_argument(parser: argparse.ArgumentParser, optional: bool = False) -
         parser.add_argument("file", metavar="FILE", help="cavity file (YAML)")
 
 
-def write_atomic(path: str, data: str | bytes) -> None:
-    """Write ``data`` to ``path`` through a temporary file in the same folder, then rename.
-
-    Nothing is left half-written: on any failure the temporary file is removed and the old
-    file (if any) is untouched.  Permissions of an existing file are kept.
-    """
-    import shutil
-
-    real = os.path.realpath(path)
-    folder = os.path.dirname(real) or "."
-    fd, tmp = tempfile.mkstemp(prefix=".regentime-", dir=folder)
-    try:
-        with os.fdopen(fd, "wb") as fh:
-            fh.write(data.encode("utf-8") if isinstance(data, str) else data)
-            fh.flush()
-            os.fsync(fh.fileno())
-        if os.path.exists(real):
-            shutil.copymode(real, tmp)
-        else:
-            os.chmod(tmp, 0o666 & ~_umask())
-        os.replace(tmp, real)
-    except BaseException:
-        try:
-            os.unlink(tmp)
-        except OSError:
-            pass
-        raise
-
-
-def _umask() -> int:
-    mask = os.umask(0)
-    os.umask(mask)
-    return mask
-
-
 def emit(args: argparse.Namespace, text: str) -> None:
     """Print ``text`` or write it to ``--output``."""
     if not text.endswith("\n"):
         text += "\n"
     out = getattr(args, "output", None)
     if out:
-        from regentime.errors import InputError
-
-        folder = os.path.dirname(os.path.abspath(out))
-        if not os.path.isdir(folder):
-            raise InputError("--output", out, "a path in an existing folder")
         write_atomic(out, text)
     else:
         sys.stdout.write(text)

@@ -9,7 +9,8 @@ from __future__ import annotations
 import argparse
 import sys
 
-from regentime.commands.common import add_file_argument, add_output_options, emit, write_atomic
+from regentime.atomic_write import write_atomic
+from regentime.commands.common import add_file_argument, add_output_options, emit
 
 EPILOG = """examples:
   regentime contrast cavities/ti_sapphire_1khz.yaml

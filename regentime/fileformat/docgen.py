@@ -74,7 +74,7 @@ def update(path: str) -> bool:
     start, end = text.index(BEGIN), text.index(END) + len(END)
     new = text[:start] + render() + text[end:]
     if new != text:
-        from regentime.commands.common import write_atomic
+        from regentime.atomic_write import write_atomic
 
         write_atomic(path, new)
     return new != text

@@ -79,7 +79,7 @@ class CavityDocument:
 
         ``path`` None writes back to the file it came from.  Returns the path written.
         """
-        from regentime.commands.common import write_atomic
+        from regentime.atomic_write import write_atomic
 
         target = path or self.source
         if not target:

@@ -22,7 +22,7 @@ def _pyplot(path: str):
 
 def save_figure(fig, path: str) -> None:
     """Render to memory, then write atomically (never a half-written PNG)."""
-    from regentime.commands.common import write_atomic
+    from regentime.atomic_write import write_atomic
 
     buf = io.BytesIO()
     fig.savefig(buf, format="png", dpi=120)

@@ -184,7 +184,7 @@ def plot_png(result: TraceResult, path: str, max_points: int = 200_000) -> None:
     import matplotlib.pyplot as plt
     import numpy as np
 
-    from regentime.commands.common import write_atomic
+    from regentime.atomic_write import write_atomic
 
     r, tr = result, result.train
     fig, (ax1, ax2) = plt.subplots(2, 1, figsize=(10, 7), constrained_layout=True)

@@ -83,7 +83,7 @@ def json_text(plan) -> str:
 
 def export(plan, path: str) -> str:
     """Write ``plan`` to ``path`` in the format its extension names; returns what was written."""
-    from regentime.commands.common import write_atomic
+    from regentime.atomic_write import write_atomic
 
     ext = os.path.splitext(path)[1].lower()
     folder = os.path.dirname(os.path.abspath(path))

@@ -103,7 +103,7 @@ class FileActions:
     def _autosave(self) -> Optional[str]:
         if self.doc is None or not self.modified:
             return None
-        from regentime.commands.common import write_atomic
+        from regentime.atomic_write import write_atomic
 
         target = autosave_path(self.doc.source)
         try:
