@@ -272,6 +272,25 @@ def choose_dump(output: np.ndarray, s_pump: np.ndarray, s_seed: np.ndarray, rule
     return peak, "auto"
 
 
+def _peak_round_trip(output: np.ndarray, cavity: Cavity, gm: GainModel, g0: float) -> int:
+    """Index of the largest finite output energy at N ≥ 1; a :class:`PlanError` with the
+    numbers when no round trip gives a finite energy (the gain overflows any float: the mode
+    is far too small or the stored energy far too large for a real amplifier)."""
+    finite = np.isfinite(output)
+    finite[:1] = False
+    if not finite.any():
+        from regentime.errors import PlanError
+
+        fluence = gm.stored_fluence(gm.stored_energy) if gm.stored_energy > 0 else 0.0
+        peak_fluence = float(np.max(np.atleast_1d(fluence)))
+        raise PlanError(
+            f"the build-up overflows: stored fluence {peak_fluence * 1e-4:.3g} J/cm² = "
+            f"{peak_fluence / gm.j_sat:.3g} J_sat (gain e^{g0:.3g} per pass) at "
+            f"gain.mode_radius {cavity.gain.mode_radius * 1e6:.3g} µm, {gm.stored_energy:.3g} J "
+            "stored; no real amplifier works there: check mode radius, pump and seed")
+    return int(np.argmax(np.where(finite, output, -np.inf)))
+
+
 def plan_buildup(cavity: Cavity, optics: CavityOptics, switching_efficiency: float = 1.0) -> BuildupPlan:
     """Simulate the build-up, evaluate every switch-out round trip, apply the dump rule."""
     gm = gain_model(cavity)
@@ -293,14 +312,14 @@ def plan_buildup(cavity: Cavity, optics: CavityOptics, switching_efficiency: flo
         else:
             res, output, s_pump, s_seed = _pulsed(cavity, gm, path, n)
             n_fit = n
-        peak = int(np.nanargmax(np.where(np.arange(output.size) >= 1, output, np.nan)))
+        peak = _peak_round_trip(output, cavity, gm, g0)
         past_plateau = not output[-1] >= 0.9 * output[peak]  # every N within 90 % is seen
         if (peak < 0.8 * n_fit and past_plateau) or n >= _MAX_SPAN or n_fit < n:
             break
         n *= 2
     if continuous and gm.grid.rings > 1:  # the span is set: now the exact ring-model steady states
         output, s_pump, s_seed, slope, n_fit, ring_state = _continuous(cavity, gm, path, n, must=given)
-        peak = int(np.nanargmax(np.where(np.arange(output.size) >= 1, output, np.nan)))
+        peak = _peak_round_trip(output, cavity, gm, g0)
     n_top = output.size - 1
     if given and given > n_top:
         from regentime.errors import InputError
