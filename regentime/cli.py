@@ -48,7 +48,7 @@ def build_parser() -> argparse.ArgumentParser:
 
 
 def main(argv: list[str] | None = None) -> int:
-    from regentime.errors import InputError, InputErrors, PlanError, RegentimeError
+    from regentime.errors import InputError, InputErrors, PlanError, RegentimeError, safe_line
 
     parser = build_parser()
     args = parser.parse_args(argv)
@@ -59,16 +59,17 @@ def main(argv: list[str] | None = None) -> int:
         return int(args.run(args) or 0)
     except InputErrors as exc:
         for err in exc.errors:
-            print(f"error: {err.one_line()}", file=sys.stderr)
+            print(safe_line(f"error: {err.one_line()}"), file=sys.stderr)
         return 2
     except InputError as exc:
-        print(f"error: {exc.one_line()}", file=sys.stderr)
+        print(safe_line(f"error: {exc.one_line()}"), file=sys.stderr)
         return 2
     except PlanError as exc:
-        print(f"cannot plan: {exc}", file=sys.stderr)
+        for line in str(exc).splitlines() or [""]:
+            print(safe_line(f"cannot plan: {line}"), file=sys.stderr)
         return 3
     except RegentimeError as exc:
-        print(f"error: {exc}", file=sys.stderr)
+        print(safe_line(f"error: {exc}"), file=sys.stderr)
         return exc.exit_code
     except KeyboardInterrupt:
         print("interrupted", file=sys.stderr)

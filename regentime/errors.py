@@ -8,6 +8,56 @@ from __future__ import annotations
 
 from typing import Any, Optional
 
+SHOWN_VALUE = 80  # characters of a user's value shown in a message
+LINE_LIMIT = 300  # characters of one message line at most
+
+
+def escape_text(text: str) -> str:
+    """``text`` safe for a terminal line: C0/C1 control characters and the bidirectional
+    overrides shown as ``\\x1b`` / ``\\u202e`` escapes, so a value can never move the cursor,
+    retitle or recolour the terminal or reverse the text around it."""
+    out = []
+    for ch in str(text):
+        code = ord(ch)
+        if code < 0x20 or code == 0x7F or 0x80 <= code < 0xA0:
+            out.append(f"\\x{code:02x}")
+        elif code in (0x200E, 0x200F, 0xFEFF) or 0x202A <= code <= 0x202E or 0x2066 <= code <= 0x2069:
+            out.append(f"\\u{code:04x}")
+        else:
+            out.append(ch)
+    return "".join(out)
+
+
+def shorten(text: str, limit: int = SHOWN_VALUE) -> str:
+    """``text`` cut to ``limit`` characters with an ellipsis."""
+    return text if len(text) <= limit else text[: limit - 1] + "…"
+
+
+def show_value(value: Any) -> str:
+    """One user value for a message: quoted, escaped, shortened; a YAML-tagged value named
+    by its tag, a collection by its kind (never a parser object's repr)."""
+    tag = getattr(getattr(value, "tag", None), "value", None) if not isinstance(value, (str, int, float)) else None
+    if isinstance(tag, str) and tag:
+        return f"a tagged value ({shorten(escape_text(tag), 40)})"
+    if isinstance(value, str):
+        return "'" + shorten(escape_text(value)) + "'"
+    if isinstance(value, (bool, int, float)) or value is None:
+        return shorten(escape_text(repr(value)))
+    from collections.abc import Mapping, Sequence, Set
+
+    if isinstance(value, Set):
+        return "a set"
+    if isinstance(value, Mapping):
+        return "a mapping"
+    if isinstance(value, Sequence):
+        return "a list" if len(value) > 8 else shorten(escape_text(repr(list(value))))
+    return shorten(escape_text(str(value)))
+
+
+def safe_line(text: str) -> str:
+    """One line for stderr: escaped and at most :data:`LINE_LIMIT` characters."""
+    return shorten(escape_text(text), LINE_LIMIT)
+
 
 class RegentimeError(Exception):
     """Base class of every error the library raises on purpose."""
@@ -42,11 +92,8 @@ class InputError(RegentimeError, ValueError):
         head = f"{where}: " if where else ""
         key = f"{self.path}: " if self.path else ""
         if self.value is _MISSING:
-            return f"{head}{key}missing; expected {self.expected}"
-        shown = repr(self.value) if not isinstance(self.value, str) else f"'{self.value}'"
-        if len(shown) > 60:
-            shown = shown[:57] + "..."
-        return f"{head}{key}got {shown}; expected {self.expected}"
+            return safe_line(f"{head}{key}missing; expected {self.expected}")
+        return safe_line(f"{head}{key}got {show_value(self.value)}; expected {self.expected}")
 
 
 class InputErrors(RegentimeError, ValueError):

@@ -133,6 +133,62 @@ def decode(raw: bytes, source: Optional[str]) -> str:
                          "a YAML text file in UTF-8", line=line, source=source) from None
 
 
+MAX_BYTES = 256 * 1024  # a real cavity file is a few kB
+MAX_NESTING = 16  # flow brackets; the format is at most 4 levels deep
+MAX_ITEMS = 5000  # list items and flow entries in one file
+
+
+def prescan(text: str, source: Optional[str] = None) -> None:
+    """Refuse, before the full parse, what no real cavity file holds: more than
+    :data:`MAX_BYTES`, flow nesting deeper than :data:`MAX_NESTING`, more than
+    :data:`MAX_ITEMS` list entries, or a ``%YAML`` directive other than 1.2 (the format is
+    YAML 1.2; a 1.1 reader would read ``yes``/``no``/``on``/``off`` and octal numbers
+    differently).  One pass over the characters, well under a second for any refused size."""
+    import re
+
+    size = len(text.encode("utf-8", "surrogatepass"))
+    if size > MAX_BYTES:
+        raise InputError("", _Shown(f"{size} bytes"), f"a cavity file of at most {MAX_BYTES // 1024} kB",
+                         source=source)
+    directive = re.search(r"(?m)^%YAML[ \t]+(\S+)", text)
+    if directive and directive.group(1) != "1.2":
+        line = text.count("\n", 0, directive.start()) + 1
+        raise InputError("%YAML", directive.group(1),
+                         "YAML 1.2, the format's version (remove the directive)", line=line,
+                         source=source)
+    depth = deepest = items = 0
+    quote = ""
+    for line_no, line in enumerate(text.splitlines(), 1):
+        stripped = line.lstrip()
+        if stripped.startswith("- ") or stripped == "-":
+            items += 1
+        for ch in line:
+            if quote:
+                if ch == quote:
+                    quote = ""
+                continue
+            if ch in "\"'" and depth:
+                quote = ch
+            elif ch == "#":
+                break
+            elif ch in "[{":
+                depth += 1
+                if depth > deepest:
+                    deepest = depth
+                    if deepest > MAX_NESTING:
+                        raise InputError("", _Shown("brackets nested too deep"),
+                                         f"a cavity file (flow nesting at most {MAX_NESTING})",
+                                         line=line_no, source=source)
+            elif ch in "]}":
+                depth = max(depth - 1, 0)
+            elif ch == "," and depth:
+                items += 1
+        if items > MAX_ITEMS:
+            raise InputError("", _Shown(f"more than {MAX_ITEMS} list entries"),
+                             "a cavity file (a real cavity has a few dozen elements)",
+                             line=line_no, source=source)
+
+
 def read_yaml(text: str, source: Optional[str] = None):
     """YAML text -> round-trip data (ruamel CommentedMap ...).  Raises InputError(s).
 
@@ -142,6 +198,7 @@ def read_yaml(text: str, source: Optional[str] = None):
     from ruamel.yaml.constructor import DuplicateKeyError
     from ruamel.yaml.error import YAMLError
 
+    prescan(text, source)
     try:
         data = _yaml().load(text)
     except DuplicateKeyError:
