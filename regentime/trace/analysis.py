@@ -84,7 +84,10 @@ def baseline_and_noise(y: np.ndarray) -> tuple[float, float]:
     base = float(np.median(med[quiet]))
     noise = MAD_TO_SIGMA * float(np.median(mad[quiet]))
     if noise <= 0.0:  # quantised, nearly noiseless record: fall back on the rms of quiet blocks
-        noise = float(np.sqrt(np.mean((blocks[quiet] - base) ** 2)))
+        dev = blocks[quiet] - base
+        top = float(np.max(np.abs(dev))) if dev.size else 0.0
+        # rms scaled by the largest deviation, so values near the float limit cannot overflow
+        noise = top * float(np.sqrt(np.mean((dev / top) ** 2))) if top > 0 else 0.0
     scale = float(np.max(np.abs(y - base))) if n else 0.0
     return base, max(noise, 1e-12 * scale, np.finfo(float).tiny)
 

@@ -105,10 +105,21 @@ def read_trace(path: str, channel: Optional[str] = None, workers: Optional[int] 
     """
     if parser not in ("auto", "pandas", "numpy"):
         raise ValueError(f"parser must be 'auto', 'pandas' or 'numpy', not {parser!r}")
-    if not os.path.exists(path):
-        raise InputError("SCOPE", path, "an existing trace file")
-    if os.path.isdir(path):
+    import errno
+    import stat
+
+    try:
+        info = os.stat(path)
+    except FileNotFoundError:
+        raise InputError("SCOPE", path, "an existing trace file") from None
+    except OSError as exc:
+        if exc.errno == errno.ELOOP:
+            raise InputError("SCOPE", path, "a trace file (this path is a symlink loop)") from None
+        raise InputError("SCOPE", path, f"a readable trace file ({(exc.strerror or '').lower()})") from None
+    if stat.S_ISDIR(info.st_mode):
         raise InputError("SCOPE", path, "a trace file, not a folder")
+    if not stat.S_ISREG(info.st_mode):
+        raise InputError("SCOPE", path, "a regular trace file, not a device, FIFO or socket")
     lower = path.lower()
     if lower.endswith(".npy") or lower.endswith(".npz"):
         names, units, columns, layout = _read_numpy(path)
@@ -121,6 +132,13 @@ def read_trace(path: str, channel: Optional[str] = None, workers: Optional[int] 
     if scale != 1.0:
         time = time * scale
     idx = _pick_channel(sig_names, channel, path)
+    bad = ~np.isfinite(columns[1 + idx])
+    if bad.any():
+        row = int(np.argmax(bad))
+        what = "every sample" if bad.all() else f"{int(bad.sum())} sample(s), the first at row {row + 1}"
+        raise InputError(sig_names[idx], float(columns[1 + idx][row]),
+                         f"finite signal values ({what} of this channel is NaN or infinite)",
+                         source=path)
     trace = Trace(time=time, signal=columns[1 + idx], channel=sig_names[idx], channels=tuple(sig_names),
                   source=path, time_unit=unit, layout=layout, first_data_line=first_line,
                   parser=used)

@@ -150,6 +150,9 @@ def inputs_from_cavity(cavity) -> BuildupInputs:
     return inputs_from_plan(SimpleNamespace(optics=optics, buildup=plan_buildup(cavity, optics)))
 
 
+SIGNAL_LIMIT = 1e100  # far beyond any recorder's range, far below where squares overflow
+
+
 def analyse_trace(trace: Trace, inputs: Optional[BuildupInputs] = None,
                   injection_time: Optional[float] = None, fit_seed: bool = False,
                   fit: bool = True) -> TraceResult:
@@ -161,6 +164,13 @@ def analyse_trace(trace: Trace, inputs: Optional[BuildupInputs] = None,
     the fit is anchored to it (the number of round trips before the first pulse is known).
     """
     inputs = inputs or BuildupInputs()
+    peak = float(np.max(np.abs(trace.signal))) if trace.signal.size else 0.0
+    if peak > SIGNAL_LIMIT:
+        from regentime.errors import InputError
+
+        raise InputError(trace.channel, peak, f"signal values below {SIGNAL_LIMIT:g} in magnitude "
+                         "(volts or counts of a recorder; larger ones overflow the analysis)",
+                         source=trace.source)
     train = analyse_pulses(trace.signal, trace.sample_interval, trace.t0,
                            expected_period=inputs.round_trip_time, source=trace.source)
     return result_from_train(train, inputs, trace=trace, injection_time=injection_time,
