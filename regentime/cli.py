@@ -1,7 +1,8 @@
 """Command-line entry point: ``regentime COMMAND ...``.
 
 Each command lives in ``regentime/commands/<name>.py`` with ``register(subparsers)`` and
-``run(args) -> int``.  This module only builds the parser and turns the library's errors into
+``run(args) -> int``, listed once in :data:`COMMAND_HELP`; only the command being run is
+imported.  This module only builds the parser and turns the library's errors into
 one clean line and the documented exit code (DESIGN.md): 0 ok, 2 input wrong, 3 plan cannot be
 met, 1 internal error.  Nothing heavy is imported here.
 """
@@ -12,7 +13,21 @@ import argparse
 import importlib
 import sys
 
-COMMANDS = ("plan", "buildup", "check", "contrast", "stability", "trace", "materials", "tui")
+#: One entry per command: its one-line help for ``regentime --help``.  The module
+#: ``regentime.commands.<name>`` is imported only when that command runs (or its own
+#: ``--help`` is asked for), so start-up does not pay for the other commands' imports.
+#: A new command is one line here plus its module.
+COMMAND_HELP: dict[str, str] = {
+    "plan": "round trip, build-up, switch-out, switching windows and the delay-generator table",
+    "buildup": "energy build-up per round trip with gain saturation",
+    "check": "validate a cavity file and run the damage, B-integral and timing checks",
+    "contrast": "pre- and post-pulse contrast, seed leakage and the pulse cleaner",
+    "stability": "shot-to-shot stability map (period doubling) and noise transfer",
+    "trace": "read a photodiode trace: real round trip, fitted build-up, switch-out correction",
+    "materials": "list the built-in material library and its sources",
+    "tui": "interactive terminal planner",
+}
+COMMANDS = tuple(COMMAND_HELP)
 
 EPILOG = """examples:
   regentime plan cavities/ti_sapphire_1khz.yaml
@@ -24,7 +39,20 @@ Safety: regens are Class 4 lasers and Pockels-cell drivers switch kilovolts; fol
 ANSI Z136.1, IEC 61010-1, local rules and your laser safety officer."""
 
 
-def build_parser() -> argparse.ArgumentParser:
+def _chosen_command(argv: list[str] | None) -> str | None:
+    """The command named on the line: the first word that is not an option (the top-level
+    parser has only ``-h`` and ``--version``, which take no value)."""
+    words = sys.argv[1:] if argv is None else argv
+    for word in words:
+        if not word.startswith("-"):
+            return word if word in COMMAND_HELP else None
+    return None
+
+
+def build_parser(argv: list[str] | None = None, *, every: bool = False) -> argparse.ArgumentParser:
+    """The parser.  Only the command named in *argv* gets its module imported and its full
+    options registered; the others are listed by name and help (enough for ``--help`` and for
+    argparse's "invalid choice" message).  ``every=True`` registers every command fully."""
     from regentime import __version__
 
     parser = argparse.ArgumentParser(
@@ -36,12 +64,17 @@ def build_parser() -> argparse.ArgumentParser:
     )
     parser.add_argument("--version", action="version", version=f"regentime {__version__}")
     sub = parser.add_subparsers(dest="command", metavar="COMMAND")
+    chosen = _chosen_command(argv)
     for name in COMMANDS:
+        if not every and name != chosen:
+            sub.add_parser(name, help=COMMAND_HELP[name])
+            continue
         try:
             module = importlib.import_module(f"regentime.commands.{name}")
         except ModuleNotFoundError as exc:  # a command still being written
             if exc.name != f"regentime.commands.{name}":
                 raise
+            sub.add_parser(name, help=COMMAND_HELP[name])
             continue
         module.register(sub)
     return parser
@@ -50,7 +83,7 @@ def build_parser() -> argparse.ArgumentParser:
 def main(argv: list[str] | None = None) -> int:
     from regentime.errors import InputError, InputErrors, PlanError, RegentimeError, safe_line
 
-    parser = build_parser()
+    parser = build_parser(argv)
     args = parser.parse_args(argv)
     if not getattr(args, "run", None):
         parser.print_help()

@@ -3,6 +3,7 @@ examples, the JSON keys of DESIGN.md, the README's command list in step with the
 
 from __future__ import annotations
 
+import argparse
 import glob
 import json
 import os
@@ -128,3 +129,27 @@ def test_every_command_has_help_with_an_example(capsys):
         assert info.value.code == 0
         out = capsys.readouterr().out
         assert "example" in out.lower(), name
+
+
+def test_command_table_help_matches_each_command_module():
+    # The lazy table must say what each command's own parser says (checked against the
+    # fully registered parser, every module imported).
+    from regentime.cli import COMMAND_HELP, build_parser
+
+    parser = build_parser(every=True)
+    sub = next(a for a in parser._actions if isinstance(a, argparse._SubParsersAction))
+    helps = {c.dest: c.help for c in sub._choices_actions}
+    assert helps == COMMAND_HELP
+
+
+def test_a_command_imports_only_its_own_module():
+    code = (
+        "import sys; from regentime.cli import main; "
+        "main(['materials']); "
+        "print(sorted(m for m in sys.modules if m.startswith('regentime.commands.')))"
+    )
+    env = dict(os.environ, PYTHONPATH=ROOT)
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True,
+                         env=env, check=True).stdout.strip().splitlines()[-1]
+    assert "regentime.commands.plan" not in out and "regentime.commands.tui" not in out
+    assert "regentime.commands.materials" in out
