@@ -28,6 +28,14 @@ def escape_text(text: str) -> str:
     return "".join(out)
 
 
+def terminal_safe(text: str) -> str:
+    """A whole report made safe to print: every line through :func:`escape_text`, the line
+    breaks and tabs kept.  JSON stays valid (its strings never hold raw control characters,
+    and a bidirectional override becomes the equivalent ``\\u202e`` escape)."""
+    return "\n".join("\t".join(escape_text(part) for part in line.split("\t"))
+                     for line in text.split("\n"))
+
+
 def shorten(text: str, limit: int = SHOWN_VALUE) -> str:
     """``text`` cut to ``limit`` characters with an ellipsis."""
     return text if len(text) <= limit else text[: limit - 1] + "…"

@@ -58,3 +58,19 @@ def test_escape_and_show_value():
     assert show_value("y" * 500).endswith("…'") and len(show_value("y" * 500)) == 82
     assert show_value({"a": 1}) == "a mapping"
     assert show_value(3.5) == "3.5"
+
+
+@pytest.mark.parametrize("fmt", ["text", "md", "csv", "json"])
+def test_names_from_the_file_cannot_drive_the_terminal(tmp_path, fmt):
+    text = re.sub(r"(?m)^name:.*$", lambda _m: r'name: "demo \e]0;retitled\a\e[31m red \u202e"', TEXT)
+    path = tmp_path / "named.yaml"
+    path.write_text(text)
+    proc = subprocess.run([sys.executable, "-m", "regentime", "plan", str(path), "--format", fmt],
+                          capture_output=True, text=True, timeout=120, cwd=ROOT)
+    assert proc.returncode in (0, 3), proc.stderr
+    for stream in (proc.stdout, proc.stderr):
+        assert not CONTROL.search(stream.replace("\n", "").replace("\t", ""))
+    if fmt == "json":
+        import json
+
+        assert "\x1b" in json.loads(proc.stdout)["name"]  # the value itself is kept

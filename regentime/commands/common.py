@@ -32,8 +32,11 @@ def add_file_argument(parser: argparse.ArgumentParser, optional: bool = False) -
 
 def emit(args: argparse.Namespace, text: str) -> None:
     """Print ``text`` or write it to ``--output``."""
+    from regentime.errors import terminal_safe
+
     if not text.endswith("\n"):
         text += "\n"
+    text = terminal_safe(text)  # a name from the file can never drive the terminal
     out = getattr(args, "output", None)
     if out:
         write_atomic(out, text)

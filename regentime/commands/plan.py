@@ -73,7 +73,11 @@ def run(args) -> int:
         plot_buildup(plan, args.plot)
     if plan.cannot_be_met:
         errors = [c for c in plan.checks if c.level == "error"]
-        print(f"cannot be met: {len(errors)} error(s) in the plan: "
-              + "; ".join(f"[{c.name}] {c.message[:100]}" for c in errors[:3]), file=sys.stderr)
+        from regentime.errors import safe_line
+
+        print(f"cannot be met: {len(errors)} error(s) in the plan (each below; all in the checks)",
+              file=sys.stderr)
+        for c in errors[:3]:
+            print(safe_line(f"  [{c.name}] {c.message}"), file=sys.stderr)
         return 3
     return 0
