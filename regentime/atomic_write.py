@@ -16,26 +16,14 @@ import os
 import stat
 import tempfile
 
-from regentime.errors import RegentimeError
+from regentime.errors import RegentimeError, escape_text, shorten
 
 _SHOWN = 80
 
 
 def shown_path(path: str) -> str:
     """``path`` quoted for one line: control characters escaped, long paths shortened."""
-    out = []
-    for ch in str(path):
-        code = ord(ch)
-        if code < 0x20 or code == 0x7F or 0x80 <= code < 0xA0:
-            out.append(f"\\x{code:02x}")
-        elif code in (0x200E, 0x200F) or 0x202A <= code <= 0x202E or 0x2066 <= code <= 0x2069:
-            out.append(f"\\u{code:04x}")
-        else:
-            out.append(ch)
-    text = "".join(out)
-    if len(text) > _SHOWN:
-        text = text[: _SHOWN - 1] + "…"
-    return f"'{text}'"
+    return "'" + shorten(escape_text(str(path)), _SHOWN) + "'"
 
 
 class OutputError(RegentimeError, OSError):
