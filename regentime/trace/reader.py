@@ -37,6 +37,7 @@ from typing import Optional, Sequence
 import numpy as np
 
 from regentime.errors import InputError
+from regentime.trace.source_checks import check_finite_channel, check_trace_path
 
 _SNIFF_BYTES = 1 << 16  # enough for any preamble a scope writes, and a few hundred data lines
 _CHUNK_BYTES = 1 << 23  # 8 MiB of text per parse job: bounded scratch memory, few jobs
@@ -105,21 +106,7 @@ def read_trace(path: str, channel: Optional[str] = None, workers: Optional[int] 
     """
     if parser not in ("auto", "pandas", "numpy"):
         raise ValueError(f"parser must be 'auto', 'pandas' or 'numpy', not {parser!r}")
-    import errno
-    import stat
-
-    try:
-        info = os.stat(path)
-    except FileNotFoundError:
-        raise InputError("SCOPE", path, "an existing trace file") from None
-    except OSError as exc:
-        if exc.errno == errno.ELOOP:
-            raise InputError("SCOPE", path, "a trace file (this path is a symlink loop)") from None
-        raise InputError("SCOPE", path, f"a readable trace file ({(exc.strerror or '').lower()})") from None
-    if stat.S_ISDIR(info.st_mode):
-        raise InputError("SCOPE", path, "a trace file, not a folder")
-    if not stat.S_ISREG(info.st_mode):
-        raise InputError("SCOPE", path, "a regular trace file, not a device, FIFO or socket")
+    check_trace_path(path)
     lower = path.lower()
     if lower.endswith(".npy") or lower.endswith(".npz"):
         names, units, columns, layout = _read_numpy(path)
@@ -132,13 +119,7 @@ def read_trace(path: str, channel: Optional[str] = None, workers: Optional[int] 
     if scale != 1.0:
         time = time * scale
     idx = _pick_channel(sig_names, channel, path)
-    bad = ~np.isfinite(columns[1 + idx])
-    if bad.any():
-        row = int(np.argmax(bad))
-        what = "every sample" if bad.all() else f"{int(bad.sum())} sample(s), the first at row {row + 1}"
-        raise InputError(sig_names[idx], float(columns[1 + idx][row]),
-                         f"finite signal values ({what} of this channel is NaN or infinite)",
-                         source=path)
+    check_finite_channel(sig_names[idx], columns[1 + idx], path)
     trace = Trace(time=time, signal=columns[1 + idx], channel=sig_names[idx], channels=tuple(sig_names),
                   source=path, time_unit=unit, layout=layout, first_data_line=first_line,
                   parser=used)
