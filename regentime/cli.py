@@ -3,7 +3,7 @@
 Each command lives in ``regentime/commands/<name>.py`` with ``register(subparsers)`` and
 ``run(args) -> int``, listed once in :data:`COMMAND_HELP`; only the command being run is
 imported.  This module only builds the parser and turns the library's errors into
-one clean line and the documented exit code (DESIGN.md): 0 ok, 2 input wrong, 3 plan cannot be
+one clean line and the documented exit code (docs/definitions.md): 0 ok, 2 input wrong, 3 plan cannot be
 met, 1 internal error.  Nothing heavy is imported here.
 """
 

@@ -1,6 +1,6 @@
 """Error classes.  The library raises these; only the front ends turn them into exit codes.
 
-Exit codes (DESIGN.md): 0 success, 2 input wrong (:class:`InputError`), 3 the plan cannot be
+Exit codes (docs/definitions.md): 0 success, 2 input wrong (:class:`InputError`), 3 the plan cannot be
 met (:class:`PlanError`), 1 internal error (anything else: a bug).
 """
 

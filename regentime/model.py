@@ -14,6 +14,8 @@ from __future__ import annotations
 from dataclasses import dataclass, field, replace
 from typing import Literal, Mapping, Optional, Union
 
+from regentime.materials.gain_media import GainMedium
+
 Profile = Literal["flat-top", "gaussian"]
 
 
@@ -24,25 +26,6 @@ class Seed:
     train_rate: float  # Hz, oscillator pulse rate
     arrival: float  # s, first seed pulse at the polarizer after the generator trigger
     bandwidth: Optional[float] = None  # m, FWHM spectral width (optional, gain narrowing)
-
-
-@dataclass(frozen=True)
-class GainMedium:
-    """Material properties of the gain medium after file overrides are applied."""
-
-    key: str  # library key, e.g. "ti_sapphire"
-    label: str  # e.g. "Ti:sapphire"
-    wavelength: float  # m, default laser wavelength
-    emission_cross_section: float  # m^2
-    absorption_cross_section: float  # m^2 (0 for four-level media)
-    upper_state_lifetime: float  # s
-    n2: float  # m^2/W, nonlinear index
-    damage_fluence: float  # J/m^2 at damage_duration
-    damage_duration: float  # s, pulse duration the damage fluence refers to
-    doping_density: float  # ions/m^3 (used for the transparency fluence of quasi-3-level)
-    host: str  # dispersion library key of the host crystal, e.g. "sapphire"
-    axis: str = "o"  # which index of the host ("o" or "e")
-    sources: Mapping[str, str] = field(default_factory=dict)  # property -> source text
 
 
 @dataclass(frozen=True)
@@ -276,6 +259,35 @@ class Checks:
 
 
 @dataclass(frozen=True)
+class DumpRule:
+    """Which round trip to switch out after: ``auto`` (the largest output), ``steady`` (the
+    quietest round trip within 90 % of the largest output) or ``given`` (``round_trip``)."""
+
+    rule: Literal["auto", "steady", "given"]
+    round_trip: Optional[int] = None  # the given N >= 1 (rule "given" only)
+
+    def __post_init__(self) -> None:
+        if self.rule not in ("auto", "steady", "given"):
+            raise ValueError(f"dump rule {self.rule!r}: expected auto, steady or given")
+        if (self.rule == "given") != (self.round_trip is not None):
+            raise ValueError("a given dump rule needs a round trip, and only it")
+
+    @classmethod
+    def of(cls, value: Union["DumpRule", str, int]) -> "DumpRule":
+        """``auto`` / ``steady`` / a round trip N >= 1 (int) / a DumpRule -> DumpRule."""
+        if isinstance(value, DumpRule):
+            return value
+        if isinstance(value, str) and value in ("auto", "steady"):
+            return cls(value)
+        if isinstance(value, int) and not isinstance(value, bool) and value >= 1:
+            return cls("given", int(value))
+        raise ValueError(f"dump {value!r}: expected auto, steady or a round trip number >= 1")
+
+    def __str__(self) -> str:
+        return str(self.round_trip) if self.rule == "given" else self.rule
+
+
+@dataclass(frozen=True)
 class Cavity:
     name: str
     wavelength: float  # m
@@ -287,7 +299,7 @@ class Cavity:
     switch: Switch
     cables: Mapping[str, Cable] = field(default_factory=dict)  # switch_on, switch_off, pump, gate, scope
     outputs: Mapping[str, str] = field(default_factory=dict)  # drives -> generator output name
-    dump: Union[str, int] = "auto"  # "auto" | "steady" | int >= 1
+    dump: DumpRule = field(default_factory=lambda: DumpRule("auto"))
     generator: Generator = field(default_factory=Generator)
     scope: Scope = field(default_factory=Scope)
     cleaner: Optional[Cleaner] = None
@@ -296,8 +308,13 @@ class Cavity:
     source: Optional[str] = None  # file path it was read from (None: built-in demo)
     content_hash: Optional[str] = None  # short hash of the file's bytes
 
-    def with_dump(self, dump: Union[str, int]) -> "Cavity":
-        return replace(self, dump=dump)
+    def __post_init__(self) -> None:
+        # ``auto``/``steady``/N given where a DumpRule is expected (e.g. ``replace(cavity, dump=12)``)
+        if not isinstance(self.dump, DumpRule):
+            object.__setattr__(self, "dump", DumpRule.of(self.dump))
+
+    def with_dump(self, dump: Union["DumpRule", str, int]) -> "Cavity":
+        return replace(self, dump=DumpRule.of(dump))
 
     def elements_of(self, cls) -> list:
         return [e for e in self.elements if isinstance(e, cls)]

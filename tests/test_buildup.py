@@ -2,8 +2,8 @@
 
 Outside references: Frantz–Nodvik (J. Appl. Phys. 34, 2346 (1963)) and its small-signal limit
 (Koechner, Solid-State Laser Engineering, ch. 4); saturation fluence hν/σ with
-scipy.constants (REFERENCES.md [D]: Ti:sapphire 0.828 J/cm²); the storage and recovery
-formulas of DESIGN.md "Gain" evaluated independently here with numpy.
+scipy.constants (docs/references.md [D]: Ti:sapphire 0.828 J/cm²); the storage and recovery
+formulas of docs/definitions.md "Gain" evaluated independently here with numpy.
 """
 
 import math
@@ -30,14 +30,14 @@ YB = "cavities/yb_100khz_cw.yaml"
 
 
 def test_saturation_fluence_ti_sapphire():
-    # REFERENCES.md [D]: σ = 3.0e-19 cm² at 800 nm -> hν/σ = 0.828 J/cm² (scipy.constants)
+    # docs/references.md [D]: σ = 3.0e-19 cm² at 800 nm -> hν/σ = 0.828 J/cm² (scipy.constants)
     j = saturation_fluence(3.0e-23, 0.0, 800e-9)
     assert j == pytest.approx(constants.h * constants.c / 800e-9 / 3.0e-23, rel=1e-12)
     assert j / 1e4 == pytest.approx(0.828, abs=1e-3)
 
 
 def test_pulsed_storage_formula():
-    # DESIGN.md: E_st = E_pump · abs · overlap · (λp/λ) · exp(−lead/τ)
+    # docs/definitions.md: E_st = E_pump · abs · overlap · (λp/λ) · exp(−lead/τ)
     e = pulsed_stored_energy(9e-3, 0.85, 0.9, 527e-9, 800e-9, 150e-9, 3.2e-6)
     assert e == pytest.approx(9e-3 * 0.85 * 0.9 * 527 / 800 * math.exp(-150 / 3200), rel=1e-12)
 
@@ -50,7 +50,7 @@ def test_relaxation_formula():
 
 def test_small_signal_growth_matches_closed_form():
     """Tiny seed: no depletion, so E_k = E_0 (T · G0²)^k — Frantz–Nodvik's small-signal limit
-    (pulsed pump: the stored energy is held during the build-up, DESIGN.md)."""
+    (pulsed pump: the stored energy is held during the build-up, docs/definitions.md)."""
     cav = load_cavity(TI)
     cav = replace(cav, seed=replace(cav.seed, energy=1e-18))
     o = cavity_optics(cav)
@@ -63,7 +63,7 @@ def test_small_signal_growth_matches_closed_form():
 
 
 def test_small_signal_growth_with_recovery():
-    """Continuous pump: between round trips E_st relaxes towards Rτ (DESIGN.md), so with a tiny
+    """Continuous pump: between round trips E_st relaxes towards Rτ (docs/definitions.md), so with a tiny
     seed g_j = g_eq + (g_0 − g_eq) e^{−j T_rt/τ} and E_k = E_0 Π_j (T · e^{2 g_j})."""
     cav = load_cavity(YB)
     cav = replace(cav, seed=replace(cav.seed, energy=1e-18), gain=replace(cav.gain, profile="flat-top"))
@@ -122,7 +122,7 @@ def test_gaussian_grid_normalised():
 
 
 def test_b_integral_worked_example():
-    # REFERENCES.md [D]: n2 = 3.2e-16 cm²/W, I = 10 GW/cm², L = 2 cm, λ = 800 nm -> 0.503 rad
+    # docs/references.md [D]: n2 = 3.2e-16 cm²/W, I = 10 GW/cm², L = 2 cm, λ = 800 nm -> 0.503 rad
     b = b_integral_increment(3.2e-20, 10e9 * 1e4, 0.02, 800e-9)
     assert b == pytest.approx(0.503, abs=1e-3)
 
@@ -169,7 +169,7 @@ def test_continuous_fixed_point_matches_direct_iteration():
 
 def test_low_rate_continuous_equals_full_storage():
     # f_rep·τ ≪ 1: the gain recovers fully between shots, so the steady output is the single
-    # build-up from the equilibrium storage Rτ (Grishin 2007, qualitative; DESIGN.md recovery law)
+    # build-up from the equilibrium storage Rτ (Grishin 2007, qualitative; docs/definitions.md recovery law)
     cav = load_cavity(YB)
     cav = replace(cav, repetition_rate=20.0, gain=replace(cav.gain, profile="flat-top"), dump=40)
     o = cavity_optics(cav)

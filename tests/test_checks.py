@@ -14,7 +14,7 @@ TI = "cavities/ti_sapphire_1khz.yaml"
 
 def test_sqrt_tau_damage_scaling():
     # Stuart et al., Phys. Rev. B 53, 1749 (1996): F_th ∝ τ^½ above ~50 ps;
-    # REFERENCES.md [D]: 10 ns -> 500 ps scales by √(0.05) = 0.2236
+    # docs/references.md [D]: 10 ns -> 500 ps scales by √(0.05) = 0.2236
     assert scaled_damage_fluence(1.0, 10e-9, 500e-12) == pytest.approx(math.sqrt(0.05), rel=1e-12)
     assert scaled_damage_fluence(1.0, 10e-9, 500e-12) == pytest.approx(0.2236, abs=1e-4)
 

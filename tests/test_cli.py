@@ -1,5 +1,5 @@
 """The command line as a user meets it: exit codes, one clean line per input problem, the
-examples, the JSON keys of DESIGN.md, the README's command list in step with the code."""
+examples, the JSON keys of docs/definitions.md, the README's command list in step with the code."""
 
 from __future__ import annotations
 
@@ -59,7 +59,7 @@ def test_examples_plan_as_json(path, capsys):
     code, out, err = run_cli(["plan", path, "--format", "json"], capsys)
     assert code in (0, 3), err
     d = json.loads(out)
-    # DESIGN.md "Output": the contract keys
+    # docs/definitions.md "JSON output": the contract keys
     for key in ("round_trip_time_s", "optical_path_m", "buildup", "dump", "switch", "seed_pulse_index",
                 "timing_table", "contrast", "checks", "cautions"):
         assert key in d, key

@@ -20,6 +20,7 @@ from regentime.model import Cable, Cleaner, GainElement, PockelsCell, Polarizer
 from regentime.physics import contrast as pc
 from regentime.physics.optics import cavity_optics
 from regentime.planning import contrast as pcon
+from regentime.planning import contrast_target as pcon_target
 from regentime.planning.buildup_plan import plan_buildup
 from regentime.planning.plan import make_plan
 
@@ -28,7 +29,7 @@ TI = ROOT / "cavities" / "ti_sapphire_1khz.yaml"
 ND = ROOT / "cavities" / "nd_ylf_ps_10hz.yaml"
 
 
-_with = pcon._with  # the planner's own "same cavity, other ER/contrast"
+_with = pcon_target.cavity_with  # the planner's own "same cavity, other ER/contrast"
 
 
 def _ideal(cavity):
@@ -69,7 +70,7 @@ def test_port_share_is_one_over_extinction_of_the_blocked_polarisation():
 
 
 def test_leak_per_return_without_cell_depolarisation_is_rs_over_er(ti):
-    # DESIGN.md "Contrast" / definition of extinction ratio: a purely P pulse leaks R_s/ER.
+    # docs/definitions.md "Contrast" / definition of extinction ratio: a purely P pulse leaks R_s/ER.
     cav = _with(ti, contrast=math.inf)
     optics, _, res = _ideal(cav)
     pol = optics.polarizer
@@ -81,7 +82,7 @@ def test_leak_per_return_without_cell_depolarisation_is_rs_over_er(ti):
 
 @pytest.mark.parametrize("crystal_in_cell_arm", [False, True])
 def test_nearest_pre_pulse_ratio_from_the_buildup_table(ti, crystal_in_cell_arm):
-    # Issue 4 / DESIGN.md "Contrast": for ideal switching the nearest pre-pulse ratio is
+    # Issue 4 / docs/definitions.md "Contrast": for ideal switching the nearest pre-pulse ratio is
     # E_N·T_ca·R_s / (ℓ·E_{N−1}·T_ca) — E_k from the build-up table, T_ca the cell-arm double
     # pass (with its gain when the crystal sits in the cell arm).  The build-up table's own
     # "output if dumped after k" is E_k·T_ca(k)·R_s, which gives E_k·T_ca(k) without our code.
@@ -108,7 +109,7 @@ def test_nearest_pre_pulse_ratio_from_the_buildup_table(ti, crystal_in_cell_arm)
     for s in res.pre_pulses:
         if s.index < n:
             assert s.energy == pytest.approx(res.leak_per_return * back(n - s.index), rel=1e-9)
-    # the last one is the injection round trip's leak: ℓ·E_0·T_ca, E_0 = seed·R_s (DESIGN.md)
+    # the last one is the injection round trip's leak: ℓ·E_0·T_ca, E_0 = seed·R_s (docs/definitions.md)
     last = res.pre_pulses[-1]
     assert last.index == n
     if not crystal_in_cell_arm:
@@ -131,7 +132,7 @@ def test_pre_pulses_are_spaced_by_the_round_trip_time(nd):
 
 
 def test_main_pulse_time_is_the_switch_out_round_trip(ti):
-    # DESIGN.md "Build-up energies": round trip 1 starts when the seed pulse t_m is reflected
+    # docs/definitions.md "Build-up energies": round trip 1 starts when the seed pulse t_m is reflected
     # into the cell arm; the pulse leaves after N round trips and one more cell-arm pass.
     p = make_plan(ti)
     expected = (p.switching.seed_time + p.buildup.dump_round_trip * p.optics.round_trip_time
@@ -157,7 +158,7 @@ def test_perfect_extinction_and_contrast_leave_no_leakage_pre_pulses(ti):
 
 
 def test_pre_pulse_ratios_scale_as_one_over_the_leak(ti):
-    # Pre-pulse k = ℓ·E_{N−k}·T_ca (DESIGN.md): the build-up does not depend on ℓ here, so a
+    # Pre-pulse k = ℓ·E_{N−k}·T_ca (docs/definitions.md): the build-up does not depend on ℓ here, so a
     # leak twice as large halves every ratio (linearity of the definition).
     optics, b, res = _ideal(ti)
     sh = pcon.polarisation_shares(ti, optics)
@@ -175,11 +176,11 @@ def test_first_post_pulse_follows_the_small_signal_gain_left(nd):
     # the switch-out is tiny, so post-pulse 1 = left·E_back·T_p²·T_gain-arm·G²·T_ca·q_off,
     # g the log gain left after the output pass.  This cavity has a Gaussian mode: ring by
     # ring, the energy gain of a crossing is Σ_i w_i exp(g_i), w_i the mode's energy share of
-    # ring i (the mode shape is re-imposed at each crossing, DESIGN.md "Gain").
+    # ring i (the mode shape is re-imposed at each crossing, docs/definitions.md "Gain").
     p = make_plan(nd)
     res, optics, b = p.contrast, p.optics, p.buildup
     sw = p.switching
-    hist = pcon._history(nd, b, sw.seed_time, optics.cell_arm_time)
+    hist = pcon.stored_history(nd, b, sw.seed_time, optics.cell_arm_time)
     gm = b.gain
     w = gm.grid.mode * gm.grid.area
     assert w.sum() == pytest.approx(1.0, rel=1e-9)
@@ -235,7 +236,7 @@ def test_quarter_wave_seed_after_switch_out_gets_one_round_trip_of_gain(ti):
     # the Jones share for R_s in, two off-state cell-arm passes, T_p twice, R_s out.
     p = make_plan(ti)
     res, optics, b = p.contrast, p.optics, p.buildup
-    hist = pcon._history(ti, b, p.switching.seed_time, optics.cell_arm_time)
+    hist = pcon.stored_history(ti, b, p.switching.seed_time, optics.cell_arm_time)
     after = [s for s in res.seed_leak if s.note == "one round trip, cell off"]
     assert after, "expected seed pulses after the switch-out"
     s = after[0]
@@ -265,7 +266,7 @@ def test_energy_within_span_is_the_sum_of_the_satellites_inside(ti):
 
 
 def test_to_dict_has_the_design_keys_and_is_strict_json(nd):
-    # DESIGN.md "Output": contrast {pre_pulses, post_pulses, seed_leak: [{time_s, energy_J,
+    # docs/definitions.md "JSON output": contrast {pre_pulses, post_pulses, seed_leak: [{time_s, energy_J,
     # ratio}], nearest_pre_ratio, worst_pre_ratio, worst_post_ratio}.
     d = make_plan(nd).contrast.to_dict()
     for key in ("pre_pulses", "post_pulses", "seed_leak", "nearest_pre_ratio", "worst_pre_ratio",
@@ -294,7 +295,7 @@ def test_cleaner_transmission_follows_sin_squared():
     t = pc.cleaner_transmission(v, math.inf, 1.0)
     assert np.allclose(t, np.sin(np.pi * v / 2) ** 2, atol=1e-15)
     assert pc.cleaner_transmission(0.0, 200.0, 0.9) == pytest.approx(0.9 / 200.0, rel=1e-12)
-    # linear ramp whose 10-90 % time is the rise time (definition of rise time; DESIGN.md
+    # linear ramp whose 10-90 % time is the rise time (definition of rise time; docs/definitions.md
     # "Switching"): with the 50 % point at 0 and a rise of 1, 10 % at −0.5 and 90 % at +0.5
     lv = pc.gate_level(np.array([-0.5, 0.0, 0.5, 5.0, 9.5, 20.0]), 0.0, 10.0, 1.0, 1.0)
     assert np.allclose(lv, [0.1, 0.5, 0.9, 1.0, 0.9, 0.0], atol=1e-12)
@@ -322,7 +323,7 @@ def test_fast_cleaner_multiplies_every_outside_ratio_by_its_extinction(ti):
 
 
 def test_cleaner_gate_and_timing_row(ti):
-    # DESIGN.md "Delay-generator settings": delay = event − latency − cable delay, cable delay
+    # docs/definitions.md "Delay-generator settings": delay = event − latency − cable delay, cable delay
     # = length/(velocity_factor·c) (c from scipy.constants).  Gate 50 % points halfway to the
     # nearest satellites of the round trip (issue 4: open after the nearest pre-pulse, closed
     # before the first post-pulse).
@@ -359,11 +360,11 @@ def test_slow_cleaner_edge_is_reported(ti):
 
 def test_target_extinction_ratio_reaches_the_target(ti):
     # Pre-pulse ratios ∝ 1/ℓ; the answer must give the target back when put into the file
-    # (round trip through the same Jones model; definition of the ratio, DESIGN.md).
+    # (round trip through the same Jones model; definition of the ratio, docs/definitions.md).
     cav = _with(ti, contrast=1e6)  # a good cell: the polarizer limits
     optics, b, res = _ideal(cav)
     target = 10 * res.nearest_pre_ratio
-    ans = pcon.required_for_target(cav, optics, res, target)
+    ans = pcon_target.required_for_target(cav, optics, res, target)
     assert ans.extinction_needed is not None and not ans.met
     cav2 = _with(cav, extinction=ans.extinction_needed)
     _, _, res2 = _ideal(cav2)
@@ -381,10 +382,10 @@ def test_target_out_of_reach_of_one_part_says_so(ti):
     # With a perfect polarizer the cell's contrast alone limits ℓ (ℓ → R_s·S share), so a
     # target beyond that limit cannot be met by the extinction ratio alone.
     optics, b, res = _ideal(ti)
-    ans = pcon.required_for_target(ti, optics, res, 1e7)
+    ans = pcon_target.required_for_target(ti, optics, res, 1e7)
     assert ans.extinction_needed is None
     _, _, perfect_pol = _ideal(_with(ti, extinction=1e15))
     assert ans.limit_by_contrast == pytest.approx(perfect_pol.nearest_pre_ratio, rel=1e-6)
     assert ans.both_factor is not None and ans.both_factor > 1
     with pytest.raises(ValueError):
-        pcon.required_for_target(ti, optics, res, 0.5)
+        pcon_target.required_for_target(ti, optics, res, 0.5)

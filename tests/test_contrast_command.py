@@ -45,14 +45,14 @@ def test_json_matches_the_plan_contrast(capsys):
     assert c["nearest_pre_ratio"] == pytest.approx(plan.contrast.nearest_pre_ratio, rel=1e-12)
     assert c["cleaner"]["nearest_pre_ratio"] > c["nearest_pre_ratio"]
     assert d["cautions"] and "IEC 60825-1" in d["cautions"][0]
-    # ratio = E_main / E for every listed satellite (definition, DESIGN.md "Contrast")
+    # ratio = E_main / E for every listed satellite (definition, docs/definitions.md "Contrast")
     for s in c["pre_pulses"] + c["post_pulses"] + c["seed_leak"]:
         if s["ratio"] is not None:
             assert s["ratio"] == pytest.approx(c["main_energy_J"] / s["energy_J"], rel=1e-9)
 
 
 def test_plan_json_carries_the_contrast_object():
-    # DESIGN.md "Output": `regentime plan --format json` has contrast.{pre_pulses, …}.
+    # docs/definitions.md "JSON output": `regentime plan --format json` has contrast.{pre_pulses, …}.
     from regentime.reports.plan_json import plan_to_json
 
     d = json.loads(plan_to_json(make_plan(load_cavity(TI))))
@@ -99,7 +99,7 @@ def test_target_option_and_decibels(capsys):
     (["--dump", "0"], "--dump"),
 ])
 def test_bad_options_exit_2_with_one_line(capsys, argv, word):
-    # DESIGN.md "Exit codes": 2 for wrong input, one clear line, no traceback
+    # docs/definitions.md "Exit codes": 2 for wrong input, one clear line, no traceback
     rc, out, err = _run(capsys, TI, *argv)
     assert rc == 2
     assert word in err and "Traceback" not in err

@@ -1,8 +1,8 @@
-"""Dispersion library against published formulas and check values (REFERENCES.md).
+"""Dispersion library against published formulas and check values (docs/references.md).
 
-Flags as in REFERENCES.md: [C] confirmed in the cited source; [D] derived by us from the
+Flags as in docs/references.md: [C] confirmed in the cited source; [D] derived by us from the
 cited formula (recomputed here from the published coefficients, independently of the
-library, and also compared with the number REFERENCES.md gives).
+library, and also compared with the number docs/references.md gives).
 """
 
 import math
@@ -33,7 +33,7 @@ def test_fused_silica_sodium_d_line_confirmed():
 
 
 def test_fused_silica_800nm_derived():
-    # [D] from the Malitson formula: n(800) = 1.45332, n_g(800) = 1.4671 (REFERENCES.md)
+    # [D] from the Malitson formula: n(800) = 1.45332, n_g(800) = 1.4671 (docs/references.md)
     n_formula = sellmeier(0.8, MALITSON_B, MALITSON_C)
     h = 1e-4  # µm, central difference of the independent formula
     dn = (sellmeier(0.8 + h, MALITSON_B, MALITSON_C)
@@ -51,7 +51,7 @@ SAPPHIRE_E = ((1.5039759, 0.55069141, 6.5927379), (0.0740288, 0.1216529, 20.0722
 
 
 def test_sapphire_800nm_derived():
-    # [D] n_o(800) = 1.76013, n_e(800) = 1.75220, n_g,o(800) = 1.7816 (REFERENCES.md)
+    # [D] n_o(800) = 1.76013, n_e(800) = 1.75220, n_g,o(800) = 1.7816 (docs/references.md)
     no = sellmeier(0.8, *SAPPHIRE_O)
     ne = sellmeier(0.8, *SAPPHIRE_E)
     h = 1e-4
@@ -100,7 +100,7 @@ def test_caf2_1030_derived():
 
 @pytest.mark.parametrize("lam_nm", [800, 1030, 1064])
 def test_air_group_index_near_1_0003(lam_nm):
-    # REFERENCES.md: air group index ≈ 1.0003 in the near infrared (Ciddor 1996 standard
+    # docs/references.md: air group index ≈ 1.0003 in the near infrared (Ciddor 1996 standard
     # air); n − 1 of dry air at 15 °C is 2.7e-4 to 2.8e-4 here (Ciddor, from memory).
     ng = group_index("air", lam_nm * NM)
     n = refractive_index("air", lam_nm * NM)

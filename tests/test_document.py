@@ -63,7 +63,7 @@ def test_set_si_number_writes_engineering_units(doc):
     doc.set("dump", 25)
     assert doc.get("dump") == 25
     cavity = doc.to_cavity()
-    assert cavity.elements[2].length == pytest.approx(0.03) and cavity.dump == 25
+    assert cavity.elements[2].length == pytest.approx(0.03) and cavity.dump.round_trip == 25
 
 
 def test_shorthand_space_becomes_mapping(doc):

@@ -1,4 +1,4 @@
-"""Half-/quarter-wave voltages against the textbook formulas and REFERENCES.md values."""
+"""Half-/quarter-wave voltages against the textbook formulas and docs/references.md values."""
 
 import math
 
@@ -16,7 +16,7 @@ PUBLISHED_TOLERANCE = 0.15
 
 
 def test_kdp_deuterated_quarter_wave_voltage_at_1064():
-    # [D] REFERENCES.md: KD*P λ/4 at 1064 nm ≈ 3.3 kV (longitudinal, V_π = λ/(2 n_o³ r63),
+    # [D] docs/references.md: KD*P λ/4 at 1064 nm ≈ 3.3 kV (longitudinal, V_π = λ/(2 n_o³ r63),
     # Yariv & Yeh 1984 ch. 7)
     v = quarter_wave_voltage("dkdp", 1064e-9)
     assert v == pytest.approx(3.3e3, rel=PUBLISHED_TOLERANCE)
@@ -31,7 +31,7 @@ def test_longitudinal_voltage_independent_of_size():
 
 
 def test_bbo_half_wave_voltage_at_1030():
-    # [D] REFERENCES.md: BBO V_π at 1030 nm, d/L = 3/20 ≈ 7.7 kV (V_π = λ d/(2 n_o³ r22 L),
+    # [D] docs/references.md: BBO V_π at 1030 nm, d/L = 3/20 ≈ 7.7 kV (V_π = λ d/(2 n_o³ r22 L),
     # Yariv & Yeh ch. 7), within the published ±15 % of r22
     v = half_wave_voltage("bbo", 1030e-9, length=20e-3, aperture=3e-3)
     assert v == pytest.approx(7.7e3, rel=PUBLISHED_TOLERANCE)

@@ -106,7 +106,7 @@ def test_defaults_applied():
     assert dict(c.outputs) == {"switch_on": "out1", "switch_off": "out2", "pump": "out3",
                                "scope": "out4"}
     assert dict(c.cables) == {}
-    assert c.dump == "auto" and c.air == "air"
+    assert c.dump.rule == "auto" and c.air == "air"
     assert c.gain.profile == "flat-top" and c.gain.rings == 64 and c.gain.pump_radius is None
     assert c.checks.b_integral_limit == 3.0 and c.checks.damage_intensity is None
     assert c.cleaner is None and c.scope.lead is None and c.generator.resolution is None
@@ -142,7 +142,7 @@ def test_overrides_land_in_the_model():
     assert c.gain.profile == "gaussian" and c.gain.pump_radius == 0.5e-3
     assert c.elements[1].group_index == 1.0003
     assert c.elements[5].material == "vacuum"  # top-level air: vacuum reaches the spaces
-    assert c.wavelength == 790e-9 and c.dump == 25 and c.air == "vacuum"
+    assert c.wavelength == 790e-9 and c.dump.round_trip == 25 and c.air == "vacuum"
     assert c.cables["pump"] == m.Cable(3.0, 0.66) and c.cables["scope"].length == 2.0
     assert c.checks.damage_intensity == pytest.approx(5e13) and c.checks.b_integral_limit == 1
     assert c.source is None and len(c.content_hash) == 12

@@ -1,7 +1,7 @@
 """Frantz–Nodvik single pass: worked values, limits, an independent rate-equation integration.
 
 Sources: L. M. Frantz and J. S. Nodvik, J. Appl. Phys. 34, 2346 (1963); W. Koechner,
-Solid-State Laser Engineering, 6th ed., ch. 4.  Worked values are REFERENCES.md [D] (derived
+Solid-State Laser Engineering, 6th ed., ch. 4.  Worked values are docs/references.md [D] (derived
 from the formula); the independent check integrates the photon-transport and inversion rate
 equations with scipy.integrate.solve_ivp (a general-purpose ODE solver).
 """
@@ -19,7 +19,7 @@ from regentime.physics.frantz_nodvik import frantz_nodvik
 @pytest.mark.parametrize(
     "j_in, g0, j_out_expected",
     [
-        (0.1, 10.0, 0.71867),  # REFERENCES.md [D]: J_sat = 1, G0 = 10, J_in = 0.1
+        (0.1, 10.0, 0.71867),  # docs/references.md [D]: J_sat = 1, G0 = 10, J_in = 0.1
         (1.0, 10.0, 2.90048),  # [D]
         (1.0, 2.0, 1.48988),  # [D]
     ],
@@ -32,7 +32,7 @@ def test_worked_values(j_in, g0, j_out_expected):
 
 
 def test_gain_left_after_pass():
-    # REFERENCES.md [D]: J_sat = 1, G0 = 10, J_in = 0.1 -> gain left 5.3866
+    # docs/references.md [D]: J_sat = 1, G0 = 10, J_in = 0.1 -> gain left 5.3866
     j_out, g_after = frantz_nodvik(0.1, math.log(10.0), 1.0)
     assert math.exp(g_after) == pytest.approx(5.3866, abs=5e-4)
     # energy bookkeeping: ln G drops by (J_out - J_in)/J_sat
@@ -40,7 +40,7 @@ def test_gain_left_after_pass():
 
 
 def test_small_signal_net_gain():
-    # REFERENCES.md [D]: J_in = 1e-3, G0 = 10 -> net gain 9.955
+    # docs/references.md [D]: J_in = 1e-3, G0 = 10 -> net gain 9.955
     j_out, _ = frantz_nodvik(1e-3, math.log(10.0), 1.0)
     assert j_out / 1e-3 == pytest.approx(9.955, abs=5e-4)
 

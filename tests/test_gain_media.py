@@ -14,21 +14,21 @@ J_PER_CM2 = 1e4  # J/m² per J/cm²
 
 
 def test_ti_sapphire_saturation_fluence_derived():
-    # [D] REFERENCES.md: hν/σ with σ = 3.0e-19 cm² at 800 nm → 0.828 J/cm²
+    # [D] docs/references.md: hν/σ with σ = 3.0e-19 cm² at 800 nm → 0.828 J/cm²
     expected = h * c / 800e-9 / 3.0e-23
     assert saturation_fluence("ti_sapphire") == pytest.approx(expected, rel=1e-12)
     assert expected / J_PER_CM2 == pytest.approx(0.828, abs=1e-3)
 
 
 def test_nd_yag_saturation_fluence_derived():
-    # [D] REFERENCES.md: Nd:YAG, 2.8e-19 cm² at 1064 nm → 0.667 J/cm²
+    # [D] docs/references.md: Nd:YAG, 2.8e-19 cm² at 1064 nm → 0.667 J/cm²
     expected = h * c / 1064e-9 / 2.8e-23
     assert saturation_fluence("nd_yag") == pytest.approx(expected, rel=1e-12)
     assert expected / J_PER_CM2 == pytest.approx(0.667, abs=1e-3)
 
 
 def test_yb_yag_quasi_three_level_saturation_fluence_derived():
-    # [D] REFERENCES.md: J_sat = hν/(σ_e + σ_a), 2.0e-20 + 0.12e-20 cm² at 1030 nm → 9.10 J/cm²
+    # [D] docs/references.md: J_sat = hν/(σ_e + σ_a), 2.0e-20 + 0.12e-20 cm² at 1030 nm → 9.10 J/cm²
     expected = h * c / 1030e-9 / (2.0e-24 + 0.12e-24)
     assert saturation_fluence("yb_yag") == pytest.approx(expected, rel=1e-12)
     assert expected / J_PER_CM2 == pytest.approx(9.10, abs=0.01)
@@ -43,7 +43,7 @@ def test_saturation_fluence_accepts_a_medium_and_another_wavelength():
 
 
 def test_transparency_fluence():
-    # J_tr = J_sat σ_a N_t L (DESIGN.md gain law, zero gain at N₂/N_t = σ_a/(σ_e+σ_a)).
+    # J_tr = J_sat σ_a N_t L (docs/definitions.md gain law, zero gain at N₂/N_t = σ_a/(σ_e+σ_a)).
     m = GAIN_MEDIA["yb_yag"]
     L = 2e-3
     expected = h * c / m.wavelength * L * m.doping_density * (

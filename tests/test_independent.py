@@ -1,6 +1,6 @@
 """Cross-check of `regentime plan` / `regentime stability` against an independent reading of
 the design's canonical definitions (tests/independent/reference.py, written from
-/work/shared/DESIGN.md and REFERENCES.md without regentime's physics or planning code).
+docs/definitions.md and docs/references.md without regentime's physics or planning code).
 
 Tolerances are the acceptance tolerances of the project (round-trip time 3 ps, the same
 switch-out round trip and seed pulse, output energy 3 %, switch-on edge inside the
@@ -13,7 +13,7 @@ case iterates the ring-resolved shot map); the recording carries each cavity fil
 and a test fails when a file changed since.  A few fast cavities are recomputed live to
 keep the recording in step with reference.py.  All cavity files are invented scenarios.
 
-The reference itself is checked against outside values first (REFERENCES.md, [D] = derived
+The reference itself is checked against outside values first (docs/references.md, [D] = derived
 by us from the published formula).
 """
 
@@ -40,7 +40,7 @@ PS = 1e-12
 # carries only the stored *energy* of a gaussian, continuously pumped crystal from shot to
 # shot and gives it the pump's radial profile again at each injection
 # (regentime/planning/steady.py, regentime/physics/dynamics.py); the reference carries the
-# depleted ring-by-ring stored fluence (DESIGN.md "Gain": "the same law ring by ring").
+# depleted ring-by-ring stored fluence (docs/definitions.md "Gain": "the same law ring by ring").
 GAUSS_CW = "regentime plan resets the radial stored-fluence profile of a gaussian, " \
            "continuously pumped crystal at every shot (energy-only memory); the design's " \
            "ring-by-ring law carries the depleted profile (output 2.4x lower)"
@@ -82,7 +82,7 @@ def tool():
 
 def test_reference_frantz_nodvik_against_references_md():
     from tests.independent.reference import fn_cross
-    # REFERENCES.md [D] (Frantz & Nodvik 1963): J_sat = 1, G0 = 10, J_in = 0.1 -> 0.71867,
+    # docs/references.md [D] (Frantz & Nodvik 1963): J_sat = 1, G0 = 10, J_in = 0.1 -> 0.71867,
     # gain left 5.3866; J_in = 1 -> 2.90048; G0 = 2, J_in = 1 -> 1.48988; J_in = 1e-3 -> 9.955
     g10 = math.log(10.0)
     out, st = fn_cross(0.1, g10, 0.0, 1.0)
@@ -91,12 +91,12 @@ def test_reference_frantz_nodvik_against_references_md():
     assert fn_cross(1.0, g10, 0.0, 1.0)[0] == pytest.approx(2.90048, abs=1e-5)
     assert fn_cross(1.0, math.log(2.0), 0.0, 1.0)[0] == pytest.approx(1.48988, abs=1e-5)
     assert fn_cross(1e-3, g10, 0.0, 1.0)[0] / 1e-3 == pytest.approx(9.955, abs=1e-3)
-    # no overflow far above saturation: J_out ≈ J_in + J_sat ln G0 (REFERENCES.md limit)
+    # no overflow far above saturation: J_out ≈ J_in + J_sat ln G0 (docs/references.md limit)
     assert fn_cross(800.0, g10, 0.0, 1.0)[0] == pytest.approx(800.0 + g10, rel=1e-12)
 
 
 def test_reference_round_trip_of_vacuum_cavity():
-    # REFERENCES.md: a 1.5 m linear cavity in vacuum has a 10.007 ns round trip (scipy c)
+    # docs/references.md: a 1.5 m linear cavity in vacuum has a 10.007 ns round trip (scipy c)
     from regentime.fileformat import load_cavity
     from tests.independent.reference import round_trip_time
     import scipy.constants as sc

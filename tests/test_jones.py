@@ -70,7 +70,7 @@ def test_retarders_compose_like_one_of_summed_retardance():
 
 
 def test_pockels_voltages_from_r63_and_r22_match_references():
-    # REFERENCES.md [D]: KD*P λ/4 voltage at 1064 nm ≈ 3.3 kV; BBO V_π at 1030 nm with d/L = 3/20
+    # docs/references.md [D]: KD*P λ/4 voltage at 1064 nm ≈ 3.3 kV; BBO V_π at 1030 nm with d/L = 3/20
     # ≈ 7.7 kV; published coefficients are ±15 % (M. J. Weber, Handbook of Optical Materials).
     assert quarter_wave_voltage("dkdp", 1064e-9) == pytest.approx(3.3e3, rel=0.15)
     assert half_wave_voltage("bbo", 1030e-9, length=20e-3, aperture=3e-3) == pytest.approx(7.7e3, rel=0.15)
@@ -78,7 +78,7 @@ def test_pockels_voltages_from_r63_and_r22_match_references():
 
 def test_full_retardance_from_voltage_and_crystal_when_no_wave_voltage_given():
     # Only `voltage:` given: Γ = π V / V_π with V_π from the crystal (Yariv & Yeh ch. 7).  A BBO
-    # cell, d/L = 3/20 at 1030 nm, driven at 3.85 kV (half of the ≈ 7.7 kV of REFERENCES.md [D])
+    # cell, d/L = 3/20 at 1030 nm, driven at 3.85 kV (half of the ≈ 7.7 kV of docs/references.md [D])
     # is a quarter-wave cell within the published ±15 %.
     cav = tc.load(voltage="voltage: 3.85 kV, aperture: 3 mm, ")
     cell = cav.elements_of(__import__("regentime.model", fromlist=["PockelsCell"]).PockelsCell)[0]
@@ -91,7 +91,7 @@ def test_full_retardance_from_voltage_and_crystal_when_no_wave_voltage_given():
 
 
 def test_leak_per_return_ideal_cell_is_reflection_over_extinction():
-    # DESIGN.md "Contrast": a purely P-polarised pulse leaks reflection_s/extinction_ratio.
+    # docs/definitions.md "Contrast": a purely P-polarised pulse leaks reflection_s/extinction_ratio.
     cav = tc.load(contrast=1e9, er=500)
     optics = cavity_optics(cav)
     assert jones.leak_per_return(cav, optics) == pytest.approx(0.995 / 500, rel=1e-5)
@@ -108,7 +108,7 @@ def test_leak_per_return_adds_the_cell_contrast():
 def test_seed_return_shares_with_ideal_optics():
     # With ideal optics (C, ER = 1e9, the largest the file takes) the quarter-wave cell arm returns the seed after one round
     # trip with R_s (in) · T_p² · R_s (out); the half-wave one reflects it straight back, R_s².
-    # (Polarizer factors from the file: T_p = 98 %, R_s = 99.5 %; DESIGN.md "Contrast".)
+    # (Polarizer factors from the file: T_p = 98 %, R_s = 99.5 %; docs/definitions.md "Contrast".)
     qw = tc.load(contrast=1e9, er=1e9)
     assert jones.seed_return_share(qw, cavity_optics(qw)) == pytest.approx(0.995 ** 2 * 0.98 ** 2, rel=1e-6)
     hw = tc.load(scheme="half-wave", contrast=1e9, er=1e9)

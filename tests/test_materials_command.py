@@ -19,7 +19,7 @@ def run(capsys, *argv):
 def test_text_listing_shows_library_values(capsys):
     code, out, err = run(capsys)
     assert code == 0 and err == ""
-    # J_sat [D] REFERENCES.md: Ti:sapphire 0.828, Nd:YAG 0.667, Yb:YAG 9.10 J/cm²
+    # J_sat [D] docs/references.md: Ti:sapphire 0.828, Nd:YAG 0.667, Yb:YAG 9.10 J/cm²
     assert "0.828 [D]" in out and "0.667 [D]" in out and "9.10 [D]" in out
     assert "3.00e-19 [M]" in out  # Ti:sapphire σ_e in cm² (Moulton 1986, number from memory)
     assert "2400 [M]" in out  # Yb:CaF2 lifetime in µs

@@ -39,7 +39,7 @@ VACUUM_1500 = """
 
 
 def test_vacuum_round_trip_1p5_m():
-    # REFERENCES.md: a 1.5 m linear cavity in vacuum has T_rt = 2L/c = 10.007 ns (scipy.constants.c)
+    # docs/references.md: a 1.5 m linear cavity in vacuum has T_rt = 2L/c = 10.007 ns (scipy.constants.c)
     o = cavity_optics(cavity(VACUUM_1500))
     assert o.optical_path == pytest.approx(1.5, abs=1e-12)
     assert o.round_trip_time == pytest.approx(2 * 1.5 / c, rel=1e-12)
@@ -48,7 +48,7 @@ def test_vacuum_round_trip_1p5_m():
 
 def test_crystal_group_index_adds_its_delay():
     # T_rt = 2 Σ n_g L / c: a 20 mm sapphire crystal (extraordinary axis for Ti:sapphire) adds
-    # 2·(n_g − 1)·L/c.  n_g from the Malitson–Dodge formula (REFERENCES.md); vacuum elsewhere.
+    # 2·(n_g − 1)·L/c.  n_g from the Malitson–Dodge formula (docs/references.md); vacuum elsewhere.
     from regentime.materials.dispersion import group_index
 
     el = VACUUM_1500.replace("gain_medium: {length: 20 mm, group_index: 1}", "gain_medium: {length: 20 mm}")
@@ -59,7 +59,7 @@ def test_crystal_group_index_adds_its_delay():
 
 
 def test_air_group_index_about_1p0003():
-    # REFERENCES.md: group index of air near 1.0003 in the near infrared (Ciddor 1996)
+    # docs/references.md: group index of air near 1.0003 in the near infrared (Ciddor 1996)
     o_air = cavity_optics(cavity(VACUUM_1500, air="air"))
     o_vac = cavity_optics(cavity(VACUUM_1500, air="vacuum"))
     ratio = o_air.round_trip_time / o_vac.round_trip_time
@@ -79,7 +79,7 @@ def test_cell_crossing_times_by_hand():
 
 
 def test_every_element_crossed_twice_end_mirrors_once():
-    # DESIGN.md "Round trip": every element between the end mirrors twice, each end mirror once,
+    # docs/definitions.md "Round trip": every element between the end mirrors twice, each end mirror once,
     # the polarizer twice in transmission.
     o = cavity_optics(cavity(VACUUM_1500))
     names = [p.element.index for p in o.passes]

@@ -6,7 +6,6 @@ from __future__ import annotations
 from pathlib import Path
 
 from regentime import fileformat
-from regentime.planning.checks import run_checks
 from regentime.planning.plan import make_plan
 
 EXAMPLE = Path(__file__).resolve().parent.parent / "cavities" / "yb_100khz_cw.yaml"
@@ -27,12 +26,12 @@ def test_overlap_defaults_to_one(tmp_path):
 
 def test_gaussian_profile_with_overlap_below_one_warns(tmp_path):
     cav = _load(tmp_path, "  overlap: 0.7 ", "  overlap: 0.7 ")
-    names = [(c.level, c.name) for c in run_checks(make_plan(cav))]
+    names = [(c.level, c.name) for c in make_plan(cav).checks]
     assert ("warning", "overlap") in names
 
 
 def test_flat_top_or_overlap_one_does_not_warn(tmp_path):
     flat = _load(tmp_path, "profile: gaussian  ", "profile: flat-top  ")
-    assert "overlap" not in [c.name for c in run_checks(make_plan(flat))]
+    assert "overlap" not in [c.name for c in make_plan(flat).checks]
     one = _load(tmp_path, "  overlap: 0.7 ", "  overlap: 1   ")
-    assert "overlap" not in [c.name for c in run_checks(make_plan(one))]
+    assert "overlap" not in [c.name for c in make_plan(one).checks]

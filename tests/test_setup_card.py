@@ -36,7 +36,7 @@ def test_text_card_has_everything_for_the_bench(plan):
     assert "switch-on" in text and "margin" in text and "σ" in text
     assert "HIGH-VOLTAGE TOLERANCE" in text and "+10 %" in text
     assert "KEY ASSUMPTIONS" in text
-    # the safety caution (DESIGN.md "Cautions")
+    # the safety caution (docs/definitions.md "Cautions")
     for words in ("Class 4", "IEC 60825-1", "ANSI Z136.1", "IEC 61010-1", "laser safety officer",
                   "low pump power"):
         assert words in " ".join(text.split())

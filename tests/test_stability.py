@@ -2,7 +2,7 @@
 
 Outside sources beside each check: M. Grishin, Opt. Express 15, 9434 (2007) and M. Grishin,
 V. Gulbinas, A. Michailovas, Opt. Express 17, 15700 (2009) (qualitative behaviour of
-continuously pumped regens, REFERENCES.md "Regen dynamics"); the small-signal limit of
+continuously pumped regens, docs/references.md "Regen dynamics"); the small-signal limit of
 Frantz–Nodvik (J. Appl. Phys. 34, 2346 (1963)): output ∝ input; first-order propagation of
 uncertainty (JCGM 100:2008, GUM, eq. 10) for the Monte-Carlo of independent shots.
 The cavities are invented test scenarios (tests/_stability_cavity.py).
@@ -77,7 +77,7 @@ def test_doubled_region_is_a_band_in_round_trips(cav):
 
 def test_more_seed_moves_onset_to_higher_rate(cav):
     # more seed energy moves the onset of doubling to a higher rate (Grishin et al. 2009;
-    # REFERENCES.md): here 1 nJ vs 30 nJ at N = 20
+    # docs/references.md): here 1 nJ vs 30 nJ at N = 20
     rates = np.linspace(10e3, 120e3, 111)
     lo = st.stability_map(cav, [20], "rate", rates, seed=1e-9)
     hi = st.stability_map(cav, [20], "rate", rates, seed=30e-9)

@@ -1,4 +1,4 @@
-"""`regentime stability` on the command line: exit codes, outputs, errors (DESIGN.md "Exit codes")."""
+"""`regentime stability` on the command line: exit codes, outputs, errors (docs/definitions.md "Exit codes")."""
 
 from __future__ import annotations
 

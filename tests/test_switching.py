@@ -105,7 +105,7 @@ def test_linear_ramp_window_width_by_hand(scheme, gamma_full):
 
 @pytest.mark.parametrize("scheme,k", [("quarter-wave", -1), ("half-wave", 0)])
 def test_gate_width_is_whole_round_trips(scheme, k):
-    # DESIGN.md "Gate width": (N−1)·T_rt quarter-wave, N·T_rt half-wave.
+    # docs/definitions.md "Gate width": (N−1)·T_rt quarter-wave, N·T_rt half-wave.
     for n in (5, 17):
         cav, optics, sp = _plan(scheme=scheme, dump=n)
         assert sp.gate_width == pytest.approx((n + k) * optics.round_trip_time, abs=1e-12)
@@ -114,7 +114,7 @@ def test_gate_width_is_whole_round_trips(scheme, k):
 
 
 def test_margin_is_half_the_narrower_window_in_jitter_sigmas():
-    # DESIGN.md "Switching": margin = half the window, reported in sigmas of the rms jitter.
+    # docs/definitions.md "Switching": margin = half the window, reported in sigmas of the rms jitter.
     cav, optics, sp = _plan(rise="3 ns", fall="5 ns")
     half = min(sp.on_window[1] - sp.on_window[0], sp.off_window[1] - sp.off_window[0]) / 2
     assert sp.margin == pytest.approx(half)
@@ -150,7 +150,7 @@ def test_quarter_wave_cell_close_to_polarizer_in_long_arm_gives_no_window():
 
 def test_half_wave_cell_close_to_end_mirror_cannot_be_met_via_cli(tmp_path, capsys):
     # Half-wave: the edge must fall between the crossings, 2·(30 mm + cell)/c ≈ 0.48 ns here,
-    # shorter than the 3.5 ns rise time → the plan cannot be met, exit code 3 (DESIGN.md).
+    # shorter than the 3.5 ns rise time → the plan cannot be met, exit code 3 (docs/definitions.md).
     from regentime.cli import main
 
     path = tmp_path / "hw.yaml"

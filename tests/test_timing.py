@@ -25,7 +25,7 @@ def test_coax_delay_5_05_ns_per_metre_at_velocity_factor_0_66():
 
 @pytest.mark.parametrize("inputs,pump", [("separate", "pulsed"), ("gate", "continuous")])
 def test_each_delay_is_edge_minus_latency_minus_cable(inputs, pump):
-    # DESIGN.md "Delay-generator settings": delay = event − latency − length/(VF·c).
+    # docs/definitions.md "Delay-generator settings": delay = event − latency − length/(VF·c).
     plan = make_plan(tc.load(inputs=inputs, pump=pump))
     sp, rows = plan.switching, plan.timing.rows
     cab = 1.5 if inputs == "separate" else 1.0
@@ -41,14 +41,14 @@ def test_each_delay_is_edge_minus_latency_minus_cable(inputs, pump):
         assert r.delay >= 0.0 and r.problem is None
     if pump == "pulsed":
         p = plan.timing.row("pump")
-        # the pump light leads the seed pulse by exactly pump.lead (DESIGN.md)
+        # the pump light leads the seed pulse by exactly pump.lead (docs/definitions.md)
         assert p.delay + 210e-9 + 3.0 / (0.66 * C) == pytest.approx(sp.seed_time - 150e-9, abs=1e-13)
     else:
         assert plan.timing.row("pump") is None
 
 
 def test_first_seed_pulse_with_all_delays_non_negative():
-    # DESIGN.md: the first m = 0, 1, … for which every delay is ≥ 0; seed t_m = arrival + m/f.
+    # docs/definitions.md: the first m = 0, 1, … for which every delay is ≥ 0; seed t_m = arrival + m/f.
     plan = make_plan(tc.load())
     m = plan.switching.seed_pulse_index
     assert plan.switching.seed_time == pytest.approx(7.3e-9 + m / 80e6)

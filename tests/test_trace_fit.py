@@ -75,7 +75,7 @@ def test_envelope_matches_direct_frantz_nodvik_loop():
 
 
 def test_backward_inverts_frantz_nodvik_published_case():
-    # REFERENCES.md [D]: J_sat = 1, G0 = 10, J_in = 0.1 -> J_out = 0.71867, gain left 5.3866
+    # docs/references.md [D]: J_sat = 1, G0 = 10, J_in = 0.1 -> J_out = 0.71867, gain left 5.3866
     m, g = backward(0.71867, math.log(5.3866), 1.0, 0.1 + 1e-12, ops=("gain",))
     assert g == pytest.approx(math.log(10.0), abs=2e-4)
     assert m == pytest.approx(1.0, abs=1e-3)

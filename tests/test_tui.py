@@ -20,7 +20,7 @@ from scipy.constants import c as SPEED_OF_LIGHT  # CODATA value, scipy.constants
 
 from regentime.fileformat.loader import load_cavity_text
 from regentime.planning.plan import CAUTION, CAUTION_SHORT, make_plan
-from regentime.reports.tables import eng
+from regentime.numfmt import eng
 from regentime.tui.app import KEYS, PlannerApp
 from regentime.tui.dialogs import ConfirmScreen, PathScreen
 from regentime.tui.help_screen import HelpScreen
@@ -135,7 +135,7 @@ async def test_switch_out_keys_move_gate_and_delay_by_one_round_trip(cavity_file
         assert later.dump_round_trip == n + 1
         assert f"switch-out after {n + 1} " in summary(app)
         t_rt = first.round_trip_time
-        # quarter-wave scheme: gate width = (N − 1)·T_rt (DESIGN.md, "Gate width"), so one more
+        # quarter-wave scheme: gate width = (N − 1)·T_rt (docs/definitions.md, "Gate width"), so one more
         # round trip adds exactly T_rt; the recommended edges are window middles, which move
         # with the crossings; 1 ps covers the window search's resolution
         assert later.switching.gate_width - first.switching.gate_width == pytest.approx(t_rt, abs=1e-12)
@@ -303,7 +303,7 @@ async def test_missing_file_quits_with_input_error_code(tmp_path: Path) -> None:
         assert isinstance(app.screen, LoadErrorScreen)
         await pilot.press("q")
         await pilot.pause()
-    assert app.return_value == 2  # DESIGN.md exit codes: 2 = input wrong
+    assert app.return_value == 2  # docs/definitions.md exit codes: 2 = input wrong
 
 
 async def test_remove_an_element_changes_the_round_trip(cavity_file: Path) -> None:
@@ -424,15 +424,6 @@ async def test_resize_to_small_terminal_keeps_working(cavity_file: Path) -> None
         await pilot.resize_terminal(40, 12)
         await pilot.pause()
         assert app.is_running
-
-
-def test_view_shows_not_available_for_missing_stages() -> None:
-    """Stages not in a build are announced, never filled with numbers."""
-    plan = reference_plan(EXAMPLE.read_text())
-    plan.switching = plan.timing = plan.contrast = None
-    assert view.generator_table(plan) is None
-    assert view.NOT_YET in view.switching_lines(plan)[0]
-    assert view.NOT_YET in view.contrast_lines(plan)[0]
 
 
 async def test_stability_map_marks_the_setting(tmp_path: Path) -> None:

@@ -76,7 +76,8 @@ def run(args: argparse.Namespace) -> int:
     from regentime.errors import PlanError
     from regentime.commands.loading import parse_dump
     from regentime.fileformat import load_cavity
-    from regentime.planning.contrast import plan_contrast, required_for_target
+    from regentime.planning.contrast import plan_contrast
+    from regentime.planning.contrast_target import required_for_target
     from regentime.planning.plan import make_plan
     from regentime.reports import contrast_report as rep
 
@@ -84,8 +85,9 @@ def run(args: argparse.Namespace) -> int:
     span = parse_span(args.span) if args.span is not None else None
     cavity = load_cavity(args.file)
     plan = make_plan(cavity, dump=parse_dump(args.dump))
-    if plan.contrast is None or span is not None:  # absent switching stage: ideal switching
-        plan.contrast = plan_contrast(cavity, plan.optics, plan.buildup, plan.switching, span=span)
+    if span is not None:  # the contrast over the user's span instead of the default one
+        plan = plan.with_contrast(plan_contrast(plan.cavity, plan.optics, plan.buildup,
+                                                plan.switching, span=span))
     targets = None
     if target is not None:
         targets = [required_for_target(cavity, plan.optics, plan.contrast, target, which)

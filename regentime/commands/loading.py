@@ -25,13 +25,15 @@ def parse_dump(text: str | None):
         return None
     from regentime.errors import InputError
 
+    from regentime.model import DumpRule
+
     t = text.strip().lower()
     if t in ("auto", "steady"):
-        return t
+        return DumpRule(t)
     try:
         n = int(t)
     except ValueError:
         raise InputError("--dump", text, "auto, steady or a round trip number ≥ 1") from None
     if n < 1:
         raise InputError("--dump", text, "auto, steady or a round trip number ≥ 1")
-    return n
+    return DumpRule("given", n)

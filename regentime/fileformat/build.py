@@ -247,7 +247,7 @@ def _build(ck: Checker, data, top: dict, elements: list, source, default_name) -
                         inputs=switch.get("inputs", "separate")),
         cables=_cables(top),
         outputs=_outputs(top),
-        dump=top.get("dump", "auto"),
+        dump=m.DumpRule.of(top.get("dump", "auto")),
         generator=m.Generator(resolution=(top.get("generator") or {}).get("resolution")),
         scope=m.Scope(lead=(top.get("scope") or {}).get("lead")),
         cleaner=None,

@@ -1,7 +1,7 @@
 """The material library as plain records (SI, unit in every key), for ``regentime materials``.
 
 Pure data assembly: no formatting, no printing.  Each value comes with its source text and
-a flag; the flags are those of REFERENCES.md:
+a flag; the flags are those of docs/references.md:
 
 * ``confirmed`` — as given in the cited source (checked there);
 * ``derived`` — computed by us from library values or a definition (J_sat, the zero

@@ -1,10 +1,10 @@
 """Built-in gain media: spectroscopic and damage data with a source for every number.
 
-Each entry is a :class:`regentime.model.GainMedium` in SI units (m, s, m², m²/W, J/m², m⁻³).
+Each entry is a :class:`GainMedium` in SI units (m, s, m², m²/W, J/m², m⁻³).
 ``sources`` maps every property name to its source text; a text that contains
 "from memory" marks a value recalled by us and not checked against the cited paper here
 (use it as a default only; the cavity file may override any property under ``gain:``).
-The flags follow /work/shared/REFERENCES.md and are listed in docs/materials.md.
+The flags follow docs/references.md and are listed in docs/materials.md.
 
 Damage fluences are for the pulse duration stored beside them; scale them to the
 stretched pulse duration with the τ^½ law (B. C. Stuart et al., Phys. Rev. B 53, 1749
@@ -13,9 +13,27 @@ stretched pulse duration with the τ^½ law (B. C. Stuart et al., Phys. Rev. B 5
 
 from __future__ import annotations
 
-from typing import Optional, Union
+from dataclasses import dataclass, field
+from typing import Mapping, Optional, Union
 
-from regentime.model import GainMedium
+
+@dataclass(frozen=True)
+class GainMedium:
+    """Material properties of the gain medium after file overrides are applied."""
+
+    key: str  # library key, e.g. "ti_sapphire"
+    label: str  # e.g. "Ti:sapphire"
+    wavelength: float  # m, default laser wavelength
+    emission_cross_section: float  # m^2
+    absorption_cross_section: float  # m^2 (0 for four-level media)
+    upper_state_lifetime: float  # s
+    n2: float  # m^2/W, nonlinear index
+    damage_fluence: float  # J/m^2 at damage_duration
+    damage_duration: float  # s, pulse duration the damage fluence refers to
+    doping_density: float  # ions/m^3 (used for the transparency fluence of quasi-3-level)
+    host: str  # dispersion library key of the host crystal, e.g. "sapphire"
+    axis: str = "o"  # which index of the host ("o" or "e")
+    sources: Mapping[str, str] = field(default_factory=dict)  # property -> source text
 
 # cm-based helpers: the literature quotes cm², cm²/W, J/cm², cm⁻³.
 _CM2 = 1e-4  # m² per cm²
@@ -163,7 +181,7 @@ _add(GainMedium(
         "absorption_cross_section": "from memory: 0.1-0.12e-20 cm² at 1030 nm, room "
                                     "temperature (quasi-three-level)",
         "upper_state_lifetime": "G. Ostermeyer and A. Straesser, Opt. Commun. 274, 422 "
-                                "(2007) (confirmed per REFERENCES.md)",
+                                "(2007) (confirmed per docs/references.md)",
         "n2": "from memory: YAG n2 ≈ 6.2e-16 cm²/W",
         "damage_fluence": _DAMAGE_NOTE,
         "damage_duration": _DAMAGE_DURATION_NOTE,
@@ -246,7 +264,7 @@ def saturation_fluence(medium: Union[str, GainMedium],
     wavelength (m²; σ_a = 0 for four-level media).  The cross-sections are not rescaled when
     another wavelength is given: override them too.  Reference: W. Koechner, Solid-State Laser
     Engineering (2006), ch. 4; Frantz–Nodvik (J. Appl. Phys. 34, 2346 (1963)); for
-    quasi-three-level media the σ_e + σ_a form (REFERENCES.md).
+    quasi-three-level media the σ_e + σ_a form (docs/references.md).
     """
     # exact SI 2019 values (equal to scipy.constants.h and .c; not imported: start-up time)
     h, c = 6.62607015e-34, 299_792_458.0
@@ -268,7 +286,7 @@ def transparency_fluence(medium: Union[str, GainMedium], length: float,
     The small-signal gain coefficient is σ_e N₂ − σ_a N₁ with N₁ + N₂ = N_t (the doping
     density, m⁻³); it vanishes at N₂ = σ_a N_t/(σ_e + σ_a).  The stored energy per area is
     J_st = h ν N₂ L, so J_tr = h ν L N_t σ_a/(σ_e + σ_a) = J_sat σ_a N_t L, and the single-
-    pass log gain is g = (J_st − J_tr)/J_sat (DESIGN.md).  L is the crystal length (m).
+    pass log gain is g = (J_st − J_tr)/J_sat (docs/definitions.md).  L is the crystal length (m).
     Zero for four-level media (σ_a = 0).  Uniform doping and inversion along the crystal
     are assumed.  Reference: W. Koechner, Solid-State Laser Engineering (2006), ch. 3
     (quasi-three-level rate equations).

@@ -1,6 +1,6 @@
 """Round-trip-by-round-trip energy build-up with gain saturation (vectorised).
 
-Model (DESIGN.md "Build-up energies", "Gain"):  the pulse energy E_k is taken just past the
+Model (docs/definitions.md "Build-up energies", "Gain"):  the pulse energy E_k is taken just past the
 polarizer, entering the cell arm, after k complete round trips (E_0 = seed energy · R_s).
 Each round trip applies, in path order, the single-pass transmission of every crossing and
 Frantz–Nodvik at every crossing of the gain crystal (ring by ring for a Gaussian mode, with
@@ -51,7 +51,7 @@ class GainModel:
     length: float = 0.0
     wavelength: float = 800e-9
     pulse_duration: float = 100e-12
-    relax_in_buildup: bool = True  # continuous pump: recover over each T_rt (DESIGN.md); pulsed: no
+    relax_in_buildup: bool = True  # continuous pump: recover over each T_rt (docs/definitions.md); pulsed: no
 
     def buildup_decay(self, dt: float) -> float:
         """Factor e^{−Δ/τ} applied to (E_st − Rτ) after each round trip of the build-up (1 when
@@ -256,7 +256,7 @@ def shot(gm: GainModel, path: RoundTripPath, seed_energy, j_st, n_round_trips, p
 
     From the stored fluence per ring at injection ``j_st`` (…, R): N round trips (each
     followed by recovery over T_rt), the output pass (depleting the crystal if it is in the
-    cell arm), then recovery over Δ = period − N·T_rt until the next injection (DESIGN.md
+    cell arm), then recovery over Δ = period − N·T_rt until the next injection (docs/definitions.md
     "Gain", continuous pump).  ``n_round_trips`` may be an integer array with the batch
     shape (each member stops at its own N).  Returns ``(output_energy, j_st_next)``.
     """

@@ -61,7 +61,7 @@ def follow(ops, energy: float, j_st, gm: GainModel):
 def relax(j_st, gm: GainModel, dt: float):
     """Stored fluence after ``dt`` seconds of pumping and spontaneous decay.
 
-    Equation (DESIGN.md "Gain")::  J(t+Δ) = J_eq + (J(t) − J_eq) e^{−Δ/τ},  J_eq = R τ / area
+    Equation (docs/definitions.md "Gain")::  J(t+Δ) = J_eq + (J(t) − J_eq) e^{−Δ/τ},  J_eq = R τ / area
     per ring (R the continuous pump rate, zero for a pulsed pump).  ``dt`` may be negative to
     run a pulsed-pump decay backwards in time (earlier = more stored).
     """

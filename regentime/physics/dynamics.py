@@ -1,6 +1,6 @@
 """Fast shot-to-shot map of a continuously pumped regen (tabulated extraction, all points at once).
 
-Model (DESIGN.md "Gain", continuous pump; M. Grishin, Opt. Express 15, 9434 (2007)).  With
+Model (docs/definitions.md "Gain", continuous pump; M. Grishin, Opt. Express 15, 9434 (2007)).  With
 x the energy stored in the mode at injection (J) and u = x/(Rτ) ∈ [0, 1] its share of the
 equilibrium Rτ (R the stored-energy rate, W; τ the upper-state lifetime, s), one shot is
 
@@ -20,7 +20,7 @@ every (f, N) point of a map is iterated at once: one table look-up and one cubic
 and point.
 
 Gaussian profiles (rings): the state carried from shot to shot is the stored energy and the
-stored fluence at injection is given the pump's profile (DESIGN.md "Gain": "with the stored
+stored fluence at injection is given the pump's profile (docs/definitions.md "Gain": "with the stored
 fluence profile of the pump"), as :mod:`regentime.planning.steady` does.  The ring-resolved
 memory of the depleted profile is available, slowly, in :func:`iterate_ring_memory`.
 

@@ -1,6 +1,6 @@
 """Gain-medium storage: saturation fluence, pump storage, recovery, radial profiles.
 
-Definitions follow DESIGN.md ("Gain").  References: W. Koechner, Solid-State Laser
+Definitions follow docs/definitions.md ("Gain").  References: W. Koechner, Solid-State Laser
 Engineering, 6th ed. (Springer 2006), ch. 3–4; A. E. Siegman, Lasers (1986), ch. 10
 (stored energy, saturation fluence, quasi-three-level media).
 """
@@ -20,7 +20,7 @@ def saturation_fluence(sigma_e: float, sigma_a: float, wavelength: float) -> flo
 
     σ_e, σ_a: emission and absorption cross-sections at the laser wavelength, m²;
     wavelength λ in m (ν = c/λ).  Valid for any σ_e + σ_a > 0.  Reference: Koechner ch. 4;
-    for quasi-three-level media the sum of the cross-sections (REFERENCES.md, Frantz–Nodvik).
+    for quasi-three-level media the sum of the cross-sections (docs/references.md, Frantz–Nodvik).
     """
     return H_PLANCK * C_LIGHT / wavelength / (sigma_e + sigma_a)
 
@@ -44,7 +44,7 @@ def pulsed_stored_energy(pump_energy: float, absorbed_fraction: float, overlap: 
 
     E_pump in J, wavelengths in m, lead and upper-state lifetime τ in s.  Valid when the pump
     pulse is short compared with τ (the decay during the pump pulse is neglected).
-    Reference: DESIGN.md "Gain"; Koechner ch. 3 (quantum defect λ_p/λ).
+    Reference: docs/definitions.md "Gain"; Koechner ch. 3 (quantum defect λ_p/λ).
     """
     return pump_energy * absorbed_fraction * overlap * (pump_wavelength / wavelength) * np.exp(-lead / tau)
 

@@ -12,7 +12,7 @@ Conventions
   CRC 2011, ch. 6; A. Yariv & P. Yeh, Optical Waves in Crystals, 1984, ch. 5).
 * Polarizer: diag(t_pass, t_block) (amplitudes).  The cavity polarizer has two ports:
   transmitted diag(√T_p, √(1 − R_s)) and reflected diag(√(R_s/ER), √R_s), ER being the
-  extinction ratio R_s/R_p of the reflected port (DESIGN.md, "Contrast").
+  extinction ratio R_s/R_p of the reflected port (docs/definitions.md, "Contrast").
 * Double pass through an arm with an end mirror at normal incidence: the arm is unfolded
   and the return pass uses the same matrix as the outward pass (a linear retarder's Jones
   matrix is symmetric, as reciprocity requires in this frame); the mirror is the identity.
@@ -278,7 +278,7 @@ def leak_per_return(cavity: Cavity, optics) -> float:
     Γ_full on both crossings), then meets the polarizer.  ℓ = R_s·S + (R_s/ER)·P, with S and
     P the shares of the returning light in each state (Jones model with the cell's static
     contrast as depolarisation, see the module notes).  A perfect cell and voltage give
-    ℓ = R_s/ER (DESIGN.md, "Contrast").  ℓ is relative to the energy that comes back from
+    ℓ = R_s/ER (docs/definitions.md, "Contrast").  ℓ is relative to the energy that comes back from
     the cell arm: the arm's passive transmission is not included.
     """
     g = full_retardance(cavity, optics.cell)

@@ -1,6 +1,6 @@
 """Cavity geometry: group delays, round-trip time, the two arms and the round-trip path.
 
-The linear cavity (end mirror to end mirror) is unfolded at the polarizer (DESIGN.md,
+The linear cavity (end mirror to end mirror) is unfolded at the polarizer (docs/definitions.md,
 "Round trip").  The arm that holds the Pockels cell is the *cell arm*, the other the *gain
 arm* (the crystal may be in either).  A round trip starts just past the polarizer, heading
 into the cell arm: cell arm out and back, polarizer in transmission, gain arm out and back,

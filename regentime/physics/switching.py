@@ -13,7 +13,7 @@ A falling edge is 1 − v.
 Pulse: Gaussian intensity, FWHM τ_p, σ_p = τ_p/(2√(2 ln 2)), cut into time slices τ_j over
 ±4.5 σ_p (the tails beyond hold 7·10⁻⁶ of the energy) with weights w_j ∝ exp(−τ_j²/2σ_p²).
 Slice j crosses the cell at t_c + τ_j and sees Γ = Γ_full · v(t_c + τ_j), its own
-retardance at its own instant (DESIGN.md, "Switching").
+retardance at its own instant (docs/definitions.md, "Switching").
 
 Share of a switching *event*: the pulse makes consecutive cell-arm double passes (crossing
 times given), the polarizer's transmitted port is applied twice between them (polarizer →
@@ -42,7 +42,7 @@ ERF_10_90 = 2.0 * 1.2815515655446004  # 10-90 % span of the normal CDF in units 
 FWHM_PER_SIGMA = 2.0 * math.sqrt(2.0 * math.log(2.0))
 SLICE_SPAN = 4.5  # sigmas each side (tails beyond: 2 * Q(4.5) = 6.8e-6 of the energy)
 SLICES = 81
-THRESHOLD = 0.99  # DESIGN.md: at least 99 % of an ideal instant switch
+THRESHOLD = 0.99  # docs/definitions.md: at least 99 % of an ideal instant switch
 _GRID = 300  # grid points of the window search (edges then refined; finds windows ≳ 0.1 ns)
 _BISECT_TOL = 0.05e-12  # s, window edges refined to 0.05 ps (well below any generator step)
 
@@ -313,7 +313,7 @@ def gap_crossings(passes: Sequence, scheme: str, edge_pass: int) -> tuple[float,
 
     Quarter-wave scheme: after the return crossing of pass ``edge_pass`` and before the
     outward crossing of the next pass; half-wave scheme: between the outward and return
-    crossings of pass ``edge_pass`` (DESIGN.md, "Switching").
+    crossings of pass ``edge_pass`` (docs/definitions.md, "Switching").
     """
     if scheme == "quarter-wave":
         return passes[edge_pass][1], passes[edge_pass + 1][0]

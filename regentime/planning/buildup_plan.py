@@ -1,6 +1,6 @@
 """Build-up of the cavity and the choice of the switch-out (dump) round trip.
 
-Rules (DESIGN.md "Dump round trip"):
+Rules (docs/definitions.md "Dump round trip"):
 - ``auto``: the N ≥ 1 that maximises the output energy;
 - ``steady``: among round trips giving at least 90 % of the peak output, the N that minimises
   the output noise for equal relative pump and seed noise, i.e. √(S_pump² + S_seed²) with
@@ -251,7 +251,7 @@ def choose_dump(output: np.ndarray, s_pump: np.ndarray, s_seed: np.ndarray, rule
 
     ``stable`` (optional, per N): False where the shot-to-shot steady state is not period 1;
     ``auto`` and ``steady`` then choose among the period-1 round trips (the plan uses period 1,
-    DESIGN.md), unless there is none.
+    docs/definitions.md), unless there is none.
     """
     valid = np.isfinite(output)
     valid[0] = False
@@ -300,7 +300,7 @@ def plan_buildup(cavity: Cavity, optics: CavityOptics, switching_efficiency: flo
     g0 = float(gm.log_gain(gm.stored_fluence(gm.stored_energy)))
     net_log = path.gain_passes * g0 + np.log(path.passive_transmission)
     n = _FIRST_SPAN
-    given = cavity.dump if isinstance(cavity.dump, int) and not isinstance(cavity.dump, bool) else None
+    given = cavity.dump.round_trip
     if given:
         n = max(n, given + 10)
     slope = shots = None
@@ -330,7 +330,7 @@ def plan_buildup(cavity: Cavity, optics: CavityOptics, switching_efficiency: flo
     if continuous:
         with np.errstate(invalid="ignore"):
             stable = ~(np.abs(slope) >= 1.0)  # unknown (NaN) counts as allowed
-    dump, rule = choose_dump(output, s_pump, s_seed, cavity.dump if given is None else given, stable)
+    dump, rule = choose_dump(output, s_pump, s_seed, cavity.dump.rule if given is None else given, stable)
     if continuous:
         # the operating point: the build-up from the steady-state stored energy for this N
         period = 1.0 / cavity.repetition_rate

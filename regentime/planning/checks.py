@@ -6,7 +6,7 @@ Every check produces a :class:`Check` with the numbers in its message; nothing i
   al., Phys. Rev. B 53, 1749 (1996): F_th ∝ τ^½ for pulses longer than about 50 ps); warned
   at 50 % of the scaled threshold (common practice: run at no more than about half the
   damage fluence) and, louder, above it.  Damage and B-integral are warnings, never errors:
-  exit code 3 is kept for timing that cannot be met (DESIGN.md "Exit codes").
+  exit code 3 is kept for timing that cannot be met (docs/definitions.md "Exit codes").
 - Peak intensity I = F_peak / (1.0645 τ_FWHM) (Gaussian pulse) against a user-given damage
   intensity (``checks: {damage_intensity: …}``).
 - B-integral B = (2π/λ) Σ n2 I L over every crossing of the crystal up to the switch-out;
@@ -41,9 +41,12 @@ def scaled_damage_fluence(f_ref: float, tau_ref: float, tau: float) -> float:
     return f_ref * np.sqrt(tau / tau_ref)
 
 
-def run_checks(plan) -> list[Check]:
+def run_checks(cav, b, stages: tuple, stability=None) -> list[Check]:
+    """The plan's checks: gain, overlap, damage, intensity, B-integral and shot-to-shot state,
+    then every stage's own checks (``stages``: switching, timing, contrast, stability; a
+    stage may be ``None``).  ``cav``: the :class:`~regentime.model.Cavity`; ``b``: its
+    :class:`~regentime.planning.buildup_plan.BuildupPlan`."""
     out: list[Check] = []
-    cav, b = plan.cavity, plan.buildup
     n = b.dump_round_trip
     medium = cav.gain.medium
     tau = cav.seed.duration
@@ -90,12 +93,12 @@ def run_checks(plan) -> list[Check]:
         out.append(Check("info", "b_integral", msg + "; above 1 rad contrast may suffer (common practice)"))
     else:
         out.append(Check("info", "b_integral", msg))
-    if b.continuous and b.shots is not None and b.shots.period != 1 and plan.stability is None:
+    if b.continuous and b.shots is not None and b.shots.period != 1 and stability is None:
         kind = "irregular" if b.shots.period == 0 else f"period {b.shots.period}"
         out.append(Check("warning", "stability",
                          f"the shot-to-shot steady state at N = {n} is {kind}: output between "
                          f"{b.shots.minimum * 1e3:.4g} and {b.shots.maximum * 1e3:.4g} mJ"))
-    for stage in (plan.switching, plan.timing, plan.contrast, plan.stability):
-        for c in getattr(stage, "checks", None) or ():
-            out.append(c)
+    for stage in stages:
+        if stage is not None:
+            out.extend(stage.checks)
     return out

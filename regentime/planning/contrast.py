@@ -1,6 +1,6 @@
-"""Pre- and post-pulse contrast of the regen's output, and the plan of an external pulse cleaner.
+"""Pre- and post-pulse contrast of the regen's output (the satellites at its port).
 
-Satellites at the output (in/out) port, relative to the main pulse (DESIGN.md "Contrast"):
+Satellites at the output (in/out) port, relative to the main pulse (definitions: docs/contrast.md):
 
 - **Leakage pre-pulses** at −k·T_rt, k = 1 … N: every time the trapped pulse comes back from
   the cell arm to the polarizer a share ℓ leaves by the reflected port
@@ -22,118 +22,38 @@ Ratios are E_main / E_satellite (> 1 for a satellite weaker than the main pulse)
 for a satellite of zero energy (perfect optics), written ``null`` in JSON.
 The cleaner: a second cell between its own polarizers after the output, gated open from
 halfway between the nearest pre-pulse and the main pulse to halfway between the main pulse
-and the first post-pulse (see :func:`plan_cleaner`).
+and the first post-pulse (:mod:`regentime.planning.cleaner`); the inverse question (which extinction
+ratio and contrast a target needs) is in :mod:`regentime.planning.contrast_target`.
 """
 
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field, replace
+from dataclasses import dataclass, field
 from typing import Any, Optional
 
 import numpy as np
 
-from regentime.model import Cavity, PockelsCell, Polarizer
+from regentime.model import Cavity, Polarizer
 from regentime.physics import contrast as pc
 from regentime.physics.buildup import path_from_passes
 from regentime.physics.optics import CavityOptics
 from regentime.planning.checks import Check
+from regentime.planning.cleaner import CleanerPlan, plan_cleaner
+from regentime.planning.satellites import Satellite, Summary, summarize
 
 POST_FLOOR = 1e-9  # post-pulses are followed until below this share of the main pulse (issue 4)
 _MAX_POST = 5000  # round trips; a guard for a leftover that does not decay (it is reported)
 _MAX_SEEDS = 20000  # seed pulses listed at most (a guard on --span: each costs a gain pass)
-_PULSE_WIDTHS = 2.0  # a pulse occupies ±1 FWHM around its centre for the cleaner-gate fit
 
 
 # ----- results ----------------------------------------------------------------------------
 
 
 @dataclass(frozen=True)
-class Satellite:
-    """One satellite pulse at the output port.
-
-    kind: "pre" (round-trip leakage), "post" or "seed"; index: k (round trips before the main
-    pulse), j (after it) or m (seed pulse number from the file's arrival); time: s from the
-    main pulse; time_from_trigger: s from the generator's trigger input (at the regen's port;
-    at the cleaner for cleaned lists); energy: J; ratio: E_main/E.
-    """
-
-    kind: str
-    index: int
-    time: float
-    time_from_trigger: float
-    energy: float
-    ratio: float
-    note: str = ""
-
-    @property
-    def db(self) -> float:
-        return pc.decibels(self.ratio)
-
-    def to_dict(self) -> dict:
-        return {"time_s": self.time, "energy_J": self.energy, "ratio": _finite(self.ratio),
-                "time_from_trigger_s": self.time_from_trigger, "dB": _finite(self.db),
-                "kind": self.kind, "index": self.index, "note": self.note}
-
-
-@dataclass
-class Summary:
-    """The numbers users ask for first, from one set of satellites."""
-
-    main_energy: float
-    nearest_pre_ratio: float
-    worst_pre_ratio: float
-    worst_post_ratio: float
-    worst_seed_ratio: float
-    energy_within: float  # J in all satellites with |t| ≤ span
-    span: float
-
-    @property
-    def energy_within_ratio(self) -> float:
-        return pc.ratio(self.main_energy, self.energy_within)
-
-    def to_dict(self) -> dict:
-        return {"nearest_pre_ratio": _finite(self.nearest_pre_ratio),
-                "worst_pre_ratio": _finite(self.worst_pre_ratio),
-                "worst_post_ratio": _finite(self.worst_post_ratio),
-                "worst_seed_ratio": _finite(self.worst_seed_ratio),
-                "energy_within_J": self.energy_within, "energy_within_ratio": _finite(self.energy_within_ratio),
-                "span_s": self.span}
-
-
-@dataclass
-class CleanerPlan:
-    """Gate of the external cleaning cell and the contrast after it."""
-
-    open_edge: float  # s from trigger, 50 % of the opening edge at the cleaner cell
-    close_edge: float
-    delay: float  # generator setting, s (latency and cable removed)
-    width: float  # gate width between the 50 % points, s
-    margin: float  # s, free time on each side of a ramp (negative: the edge does not fit)
-    fits: bool
-    main_transmission: float
-    main_energy: float  # after the cleaner, J
-    pre_pulses: list
-    post_pulses: list
-    seed_leak: list
-    summary: Summary
-    extinction_ratio: float
-    transmission: float
-
-    def to_dict(self) -> dict:
-        out = {"open_edge_s": self.open_edge, "close_edge_s": self.close_edge, "delay_s": self.delay,
-               "gate_width_s": self.width, "margin_s": self.margin, "edge_fits": self.fits,
-               "main_transmission": self.main_transmission, "main_energy_J": self.main_energy,
-               "extinction_ratio": _finite(self.extinction_ratio), "transmission": self.transmission,
-               "pre_pulses": [s.to_dict() for s in self.pre_pulses],
-               "post_pulses": [s.to_dict() for s in self.post_pulses],
-               "seed_leak": [s.to_dict() for s in self.seed_leak]}
-        out.update(self.summary.to_dict())
-        return out
-
-
-@dataclass
 class ContrastResult:
+    """Satellites at the output port, their summary and, with a cleaner, the contrast after it."""
+
     main_energy: float  # J, the plan's output energy
     main_time: float  # s from trigger, main pulse at the output port
     round_trip_time: float
@@ -173,7 +93,7 @@ class ContrastResult:
         return sorted(self.pre_pulses + self.post_pulses + self.seed_leak, key=lambda s: s.time)
 
     def to_dict(self) -> dict:
-        """DESIGN.md's ``contrast`` object (SI units; ``null`` for an infinite ratio)."""
+        """The JSON ``contrast`` object (docs/definitions.md, "JSON output") (SI units; ``null`` for an infinite ratio)."""
         out = {"pre_pulses": [s.to_dict() for s in self.pre_pulses],
                "post_pulses": [s.to_dict() for s in self.post_pulses],
                "seed_leak": [s.to_dict() for s in self.seed_leak]}
@@ -186,10 +106,6 @@ class ContrastResult:
         if self.cleaned is not None:
             out["cleaner"] = self.cleaned.to_dict()
         return out
-
-
-def _finite(x: float) -> Optional[float]:
-    return float(x) if math.isfinite(x) else None
 
 
 # ----- polarisation shares ----------------------------------------------------------------
@@ -247,7 +163,7 @@ def polarisation_shares(cavity: Cavity, optics: CavityOptics) -> Shares:
 
 
 @dataclass
-class _History:
+class StoredHistory:
     """Energies and stored fluences of the build-up, and the gain at any time."""
 
     gm: Any
@@ -272,7 +188,7 @@ class _History:
         return pc.relax(self.j_after, gm, t - self.t_out)
 
 
-def _history(cavity: Cavity, buildup, t_inj: float, t_ca: float) -> _History:
+def stored_history(cavity: Cavity, buildup, t_inj: float, t_ca: float) -> StoredHistory:
     gm, path = buildup.gain, buildup.path
     n = buildup.dump_round_trip
     j = buildup.stored_fluence_at_injection()
@@ -287,7 +203,7 @@ def _history(cavity: Cavity, buildup, t_inj: float, t_ca: float) -> _History:
     back_n, j_after = pc.follow(path.out_ops, e, j, gm)
     backs.append(back_n)
     t_pump = t_inj - cavity.pump.lead if cavity.pump.mode == "pulsed" else None
-    return _History(gm, t_inj, t_inj + n * path.dt + t_ca, t_pump, path.dt, energies, backs, js, j_after)
+    return StoredHistory(gm, t_inj, t_inj + n * path.dt + t_ca, t_pump, path.dt, energies, backs, js, j_after)
 
 
 # ----- the satellites ---------------------------------------------------------------------
@@ -308,8 +224,8 @@ def plan_contrast(cavity: Cavity, optics: CavityOptics, buildup, switching,
         raise InputError("--span", span, "a positive time")
     sh = shares or polarisation_shares(cavity, optics)
     n = buildup.dump_round_trip
-    t_inj = float(getattr(switching, "seed_time", None) or cavity.seed.arrival)
-    hist = _history(cavity, buildup, t_inj, t_ca)
+    t_inj = cavity.seed.arrival if switching is None else float(switching.seed_time)
+    hist = stored_history(cavity, buildup, t_inj, t_ca)
     main = buildup.output_energy
     t_main = hist.t_out
     notes: list[str] = []
@@ -331,19 +247,20 @@ def plan_contrast(cavity: Cavity, optics: CavityOptics, buildup, switching,
                             f"at +{top.index} round trips); switch out later, lower the pump or improve "
                             "the switch-out"))
     seeds = _seed_leak(cavity, optics, buildup, switching, sh, hist, main, span)
-    summary = _summary(main, pre, post, seeds, span)
-    result = ContrastResult(main, t_main, trt, n, pre, post, seeds, summary, sh.leak, sh.off_keep,
-                            sh.off_out, left, checks=checks, notes=notes)
+    summary = summarize(main, pre, post, seeds, span)
+    cleaned, rows = None, []
     if cavity.cleaner is not None:
-        plan_cleaner(cavity, result)
-    return result
+        cleaned, cleaner_checks, rows = plan_cleaner(cavity, main, t_main, trt, pre, post, seeds, span)
+        checks.extend(cleaner_checks)
+    return ContrastResult(main, t_main, trt, n, pre, post, seeds, summary, sh.leak, sh.off_keep,
+                          sh.off_out, left, cleaned=cleaned, timing_rows=rows, checks=checks, notes=notes)
 
 
-def _post_pulses(cavity, optics, buildup, switching, sh: Shares, hist: _History, main: float):
+def _post_pulses(cavity, optics, buildup, switching, sh: Shares, hist: StoredHistory, main: float):
     """Post-pulses from the share the switch-out leaves in the cavity (see the module notes)."""
     gm, path = buildup.gain, buildup.path
     trt = path.dt
-    left = left_in_cavity(cavity, sh, getattr(switching, "ejected_share", None))
+    left = left_in_cavity(cavity, sh, None if switching is None else switching.ejected_share)
     rest_ops = path_from_passes([p for p in optics.passes if p.arm != "cell"], 1.0, trt).ops
     x = hist.back[-1] * left
     j = hist.j_after
@@ -384,7 +301,7 @@ def left_in_cavity(cavity: Cavity, sh: Shares, ejected: Optional[float]) -> floa
     return min(1.0, max(0.0, 1.0 - s))
 
 
-def _seed_leak(cavity, optics, buildup, switching, sh: Shares, hist: _History, main: float,
+def _seed_leak(cavity, optics, buildup, switching, sh: Shares, hist: StoredHistory, main: float,
                span: float) -> list:
     """Seed pulses sent back to the port within ±span of the main pulse."""
     gm, path = buildup.gain, buildup.path
@@ -392,12 +309,12 @@ def _seed_leak(cavity, optics, buildup, switching, sh: Shares, hist: _History, m
     seed = cavity.seed
     dt = 1.0 / seed.train_rate
     quarter = cavity.switch.scheme == "quarter-wave"
-    on_edge = getattr(switching, "on_edge", None)
-    off_edge = getattr(switching, "off_edge", None)
-    if on_edge is None or off_edge is None:  # no switching plan: the ideal gate
+    if switching is None:  # ideal switching: the ideal gate, no seed index or trapped share
         on_edge, off_edge = hist.t_inj + 0.5 * trt, hist.t_out - 0.5 * t_ca
-    m0 = getattr(switching, "seed_pulse_index", None)
-    trapped = getattr(switching, "trapped_share", None)
+        m0 = trapped = None
+    else:
+        on_edge, off_edge = switching.on_edge, switching.off_edge
+        m0, trapped = switching.seed_pulse_index, switching.trapped_share
     t_cross = optics.cell_crossings[0] if optics.cell_crossings else 0.0
     gain_ops = path_from_passes([p for p in optics.passes if p.arm == "gain"], 1.0, trt).ops
     round_ops = tuple(path.out_ops) + tuple(gain_ops) + tuple(path.out_ops)
@@ -439,227 +356,5 @@ def _seed_leak(cavity, optics, buildup, switching, sh: Shares, hist: _History, m
     return out
 
 
-def _summary(main: float, pre: list, post: list, seeds: list, span: float) -> Summary:
-    nearest = next((s.ratio for s in pre if s.index == 1), math.inf)
-    worst_pre = min((s.ratio for s in pre), default=math.inf)
-    worst_post = min((s.ratio for s in post), default=math.inf)
-    worst_seed = min((s.ratio for s in seeds), default=math.inf)
-    within = sum(s.energy for s in pre + post + seeds if abs(s.time) <= span * (1 + 1e-12))
-    return Summary(main, nearest, worst_pre, worst_post, worst_seed, within, span)
-
-
-# ----- the cleaner ------------------------------------------------------------------------
-
-
-def plan_cleaner(cavity: Cavity, result: ContrastResult) -> CleanerPlan:
-    """Gate the external cleaning cell around the main pulse and apply it to every satellite.
-
-    The gate's 50 % points sit halfway between the nearest pre-pulse and the main pulse
-    (−T_rt/2) and halfway between the main pulse and the first post-pulse (+T_rt/2) at the
-    cleaner cell (output time + path_delay); each satellite is multiplied by the cleaner's
-    transmission at its time, T(v) = T_open [sin²(πv/2) + cos²(πv/2)/ER] (Yariv & Yeh), with v
-    the linear-ramp gate level.  The ramp (0–100 % in rise/0.8) plus ±1 FWHM of the pulse must
-    fit in half a round trip on each side; otherwise a warning says so and the satellites on
-    the edge get the edge's share.  Sets ``result.cleaned`` and appends the gate's timing row.
-    """
-    cl = cavity.cleaner
-    trt = result.round_trip_time
-    t_main = result.main_time + cl.path_delay
-    t_open, t_close = t_main - 0.5 * trt, t_main + 0.5 * trt
-    ramp_on, ramp_off = cl.rise_time / 0.8, cl.fall_time / 0.8
-    width_pulse = _PULSE_WIDTHS * cavity.seed.duration
-    margin = 0.5 * (trt - max(ramp_on, ramp_off) - width_pulse)
-    fits = margin >= 0.0
-
-    def trans(t_rel):
-        level = pc.gate_level(t_main + np.asarray(t_rel), t_open, t_close, cl.rise_time, cl.fall_time)
-        return pc.cleaner_transmission(level, cl.extinction_ratio, cl.transmission)
-
-    t_m = float(trans(0.0))
-    main = result.main_energy * t_m
-
-    def clean(sats):
-        out = []
-        for s in sats:
-            e = s.energy * float(trans(s.time))
-            out.append(replace(s, energy=e, ratio=pc.ratio(main, e), time_from_trigger=s.time_from_trigger
-                               + cl.path_delay))
-        return out
-
-    pre, post, seeds = clean(result.pre_pulses), clean(result.post_pulses), clean(result.seed_leak)
-    summary = _summary(main, pre, post, seeds, result.summary.span)
-    cable = cl.cable if cl.cable is not None else cavity.cables.get("cleaner")
-    cable_delay = cable.delay if cable is not None else 0.0
-    delay = t_open - cl.latency - cable_delay
-    plan = CleanerPlan(t_open, t_close, delay, t_close - t_open, margin, fits, t_m, main, pre, post, seeds,
-                       summary, cl.extinction_ratio, cl.transmission)
-    result.cleaned = plan
-    sigma = cavity.switch.jitter
-    if not fits:
-        result.checks.append(Check(
-            "warning", "cleaner",
-            f"the cleaner's edges ({cl.rise_time * 1e9:.3g} ns rise, {cl.fall_time * 1e9:.3g} ns fall, 10-90 %) "
-            f"with the pulse (±{cavity.seed.duration * 1e12:.0f} ps) do not fit inside one round trip "
-            f"({trt * 1e9:.3f} ns) around the main pulse: the nearest satellites pass on the edges and the "
-            f"main pulse sees {t_m / cl.transmission * 100:.1f} % of the open transmission"))
-    elif sigma > 0 and margin < 3 * sigma:
-        result.checks.append(Check("warning", "cleaner",
-                                   f"cleaner gate margin {margin * 1e12:.0f} ps is {margin / sigma:.1f} σ of the "
-                                   f"switch jitter ({sigma * 1e12:.0f} ps rms)"))
-    else:
-        result.checks.append(Check("info", "cleaner",
-                                   f"cleaner gate fits: {margin * 1e9:.3g} ns free on each side of its edges"))
-    row = _cleaner_row(cavity, plan, cable_delay)
-    if row is not None:
-        result.timing_rows.append(row)
-    if delay < 0:
-        result.checks.append(Check("error", "cleaner",
-                                   f"cleaner delay would be {delay * 1e9:.3f} ns (negative): the main pulse "
-                                   "reaches the cleaner before its latency and cable allow"))
-    return plan
-
-
-def _cleaner_row(cavity: Cavity, plan: CleanerPlan, cable_delay: float):
-    """The cleaner's row of the delay-generator table (None if the timing module is absent)."""
-    try:
-        from regentime.planning.timing import TimingRow
-    except ModuleNotFoundError:
-        return None
-    cl = cavity.cleaner
-    res = cavity.generator.resolution
-    delay, width, rounding = plan.delay, plan.width, 0.0
-    if res:
-        d_r = round(delay / res) * res
-        rounding = d_r - delay
-        delay, width = d_r, round(width / res) * res
-    note = (("" if plan.fits else "edge too slow for one round trip; ")
-            + f"cleaner gate: 50 % edges {plan.width * 0.5e9:.3f} ns either side of the main pulse at the "
-            f"cleaner (latency {cl.latency * 1e9:.3g} ns, cable {cable_delay * 1e9:.3g} ns)")
-    problem = None
-    if plan.delay < 0:
-        problem = "negative delay: the main pulse reaches the cleaner before its latency and cable allow"
-    return _make_row(TimingRow, output=cl.output, drives="cleaner", delay=delay, width=width, note=note,
-                     problem=problem, rounding=rounding, event=plan.open_edge, latency=cl.latency,
-                     cable_delay=cable_delay)
-
-
-def _make_row(cls, **kw):
-    """Build a TimingRow with the fields it has (the timing module owns the class)."""
-    import dataclasses
-
-    if dataclasses.is_dataclass(cls):
-        names = {f.name for f in dataclasses.fields(cls)}
-        kw = {k: v for k, v in kw.items() if k in names}
-    return cls(**kw)
-
-
-# ----- the inverse question ---------------------------------------------------------------
-
-
-@dataclass
-class TargetAnswer:
-    """Polarizer extinction ratio and cell contrast needed for a pre-pulse ratio target."""
-
-    target: float
-    which: str  # "nearest" | "worst"
-    now: float  # the ratio with the file as it is
-    leak_needed: float
-    extinction_needed: Optional[float]  # with the file's cell contrast (None: not reachable)
-    contrast_needed: Optional[float]  # with the file's extinction ratio
-    extinction_now: float
-    contrast_now: float
-    limit_by_contrast: float  # best ratio with a perfect polarizer and the file's contrast
-    limit_by_extinction: float  # best ratio with a perfect cell and the file's polarizer
-    both_factor: Optional[float] = None  # improve ER and contrast both by this factor
-
-    @property
-    def met(self) -> bool:
-        return self.now >= self.target
-
-    def to_dict(self) -> dict:
-        return {"target_ratio": self.target, "which": self.which, "ratio_now": _finite(self.now),
-                "met": self.met, "leak_needed": self.leak_needed,
-                "extinction_ratio_needed": _finite(self.extinction_needed or math.inf)
-                if self.extinction_needed is not None else None,
-                "contrast_needed": _finite(self.contrast_needed or math.inf)
-                if self.contrast_needed is not None else None,
-                "extinction_ratio_now": _finite(self.extinction_now), "contrast_now": _finite(self.contrast_now),
-                "best_ratio_with_perfect_polarizer": _finite(self.limit_by_contrast),
-                "best_ratio_with_perfect_cell": _finite(self.limit_by_extinction),
-                "both_improved_by": _finite(self.both_factor) if self.both_factor is not None else None}
-
-
-def _with(cavity: Cavity, extinction: Optional[float] = None, contrast: Optional[float] = None) -> Cavity:
-    els = []
-    for e in cavity.elements:
-        if extinction is not None and isinstance(e, Polarizer):
-            e = replace(e, extinction_ratio=extinction)
-        if contrast is not None and isinstance(e, PockelsCell):
-            e = replace(e, contrast=contrast)
-        els.append(e)
-    return replace(cavity, elements=tuple(els))
-
-
-def _leak(cavity: Cavity, optics: CavityOptics, extinction=None, contrast=None) -> float:
-    """ℓ with the polarizer's ER and/or the cell's contrast replaced (the rest held)."""
-    from regentime.physics import jones
-
-    cav = _with(cavity, extinction, contrast)
-    pol = replace(optics.polarizer, extinction_ratio=extinction) if extinction is not None else optics.polarizer
-    cell = replace(optics.cell, contrast=contrast) if contrast is not None else optics.cell
-    arm = tuple(cell if a is optics.cell else (pol if a is optics.polarizer else a) for a in optics.cell_arm)
-    return float(jones.leak_per_return(cav, replace(optics, polarizer=pol, cell=cell, cell_arm=arm)))
-
-
-def required_for_target(cavity: Cavity, optics: CavityOptics, result: ContrastResult, target: float,
-                        which: str = "nearest") -> TargetAnswer:
-    """Extinction ratio (cell contrast held) and cell contrast (ER held) for a pre-pulse ratio.
-
-    Pre-pulse ratios scale as 1/ℓ with everything else held (the build-up does not depend on
-    the leak in this model), so the target needs ℓ* = ℓ·r_now/r_target; each parameter is
-    then found by bisection on log ER (or log C) of the Jones model's ℓ, which falls
-    monotonically with both.  ``None`` when the other parameter alone already limits the
-    ratio below the target.
-    """
-    if not (target > 1 and math.isfinite(target)):
-        from regentime.errors import InputError
-
-        raise InputError("--target", target, "a finite contrast ratio greater than 1 (e.g. 1e6 or 60 dB)")
-    now = result.nearest_pre_ratio if which == "nearest" else result.worst_pre_ratio
-    leak = result.leak_per_return
-    pol, cell = optics.polarizer, optics.cell
-    if not math.isfinite(now) or leak <= 0:
-        return TargetAnswer(target, which, now, 0.0, pol.extinction_ratio, cell.contrast, pol.extinction_ratio,
-                            cell.contrast, math.inf, math.inf)
-    need = leak * now / target
-    perfect = 1e15  # stands for "infinite" in the bisection (ℓ is then limited by the other part)
-    leak_c = _leak(cavity, optics, extinction=perfect)
-    leak_e = _leak(cavity, optics, contrast=perfect)
-
-    er0, c0 = pol.extinction_ratio, cell.contrast
-
-    def solve(kind):
-        floor = {"extinction": leak_c, "contrast": leak_e, "both": 0.0}[kind]
-        if need <= floor * (1 + 1e-9):
-            return None
-        f = {"extinction": lambda x: _leak(cavity, optics, extinction=x),
-             "contrast": lambda x: _leak(cavity, optics, contrast=x),
-             "both": lambda x: _leak(cavity, optics, extinction=max(1.0 + 1e-9, er0 * x), contrast=c0 * x)}[kind]
-        lo, hi = (0.0, math.log10(perfect)) if kind != "both" else (-6.0, 12.0)  # log10 of the parameter
-        if f(10 ** lo) <= need:
-            return 10 ** lo
-        for _ in range(60):
-            mid = 0.5 * (lo + hi)
-            if f(10 ** mid) > need:
-                lo = mid
-            else:
-                hi = mid
-        return 10 ** hi
-
-    return TargetAnswer(target, which, now, need, solve("extinction"), solve("contrast"), pol.extinction_ratio,
-                        cell.contrast, now * leak / leak_c if leak_c > 0 else math.inf,
-                        now * leak / leak_e if leak_e > 0 else math.inf, solve("both"))
-
-
-__all__ = ["CleanerPlan", "ContrastResult", "POST_FLOOR", "Satellite", "Shares", "Summary", "TargetAnswer",
-           "plan_cleaner", "plan_contrast", "polarisation_shares", "required_for_target"]
+__all__ = ["ContrastResult", "POST_FLOOR", "Shares", "left_in_cavity", "plan_contrast",
+           "polarisation_shares", "stored_history"]

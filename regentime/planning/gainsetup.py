@@ -21,7 +21,7 @@ def crystal(cavity: Cavity) -> GainElement:
 def gain_model(cavity: Cavity, pump_scale: float = 1.0) -> GainModel:
     """Gain model of the cavity: J_sat, J_tr, τ, rings, stored energy at injection, pump rate.
 
-    Pulsed pump: the stored energy at injection per DESIGN.md (decayed over ``lead``), then held
+    Pulsed pump: the stored energy at injection per docs/definitions.md (decayed over ``lead``), then held
     during the build-up (only extraction lowers it; the design's definition — the decay over a
     build-up of N·T_rt ≪ τ is left out, see docs/physics.md).
     Continuous pump: the start value is the equilibrium Rτ (full storage) and ``pump_rate``

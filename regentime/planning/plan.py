@@ -6,13 +6,17 @@ It computes; it never formats or prints (see :mod:`regentime.reports`).
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field, replace
-from typing import Any, Optional, Union
+from dataclasses import dataclass, replace
+from typing import Optional, Union
 
-from regentime.model import Cavity
+from regentime.model import Cavity, DumpRule
 from regentime.physics.optics import CavityOptics, cavity_optics
 from regentime.planning.buildup_plan import BuildupPlan, plan_buildup
 from regentime.planning.checks import Check, run_checks
+from regentime.planning.contrast import ContrastResult, plan_contrast
+from regentime.planning.stability import StabilityNote, plan_stability_note
+from regentime.planning.switching import SwitchPlan, plan_switching
+from regentime.planning.timing import TimingTable, timing_table
 
 CAUTION = (
     "CAUTION: a regenerative amplifier is a Class 4 laser and its Pockels-cell driver switches "
@@ -26,17 +30,24 @@ CAUTION_SHORT = (
 )
 
 
-@dataclass
+@dataclass(frozen=True)
 class Plan:
+    """Everything planned for one cavity; built once by :func:`make_plan`, never changed.
+
+    Every stage is present for every cavity; ``stability`` is the shot-to-shot note of a
+    continuously pumped cavity and ``None`` for a pulsed pump (there is no shot-to-shot
+    coupling to describe).  All numbers are SI (s, J, m, W, rad).
+    """
+
     cavity: Cavity
     optics: CavityOptics
     buildup: BuildupPlan
-    switching: Optional[Any] = None  # regentime.planning.switching.SwitchPlan
-    timing: Optional[Any] = None  # regentime.planning.timing.TimingTable
-    contrast: Optional[Any] = None  # regentime.planning.contrast.ContrastResult
-    checks: list = field(default_factory=list)  # list[Check]
-    cautions: list = field(default_factory=lambda: [CAUTION])
-    stability: Optional[Any] = None  # continuous pump: nearest stable round trips etc.
+    switching: SwitchPlan
+    timing: TimingTable
+    contrast: ContrastResult
+    checks: tuple[Check, ...]
+    stability: Optional[StabilityNote] = None
+    cautions: tuple[str, ...] = (CAUTION,)
 
     @property
     def round_trip_time(self) -> float:
@@ -48,29 +59,30 @@ class Plan:
 
     @property
     def cannot_be_met(self) -> bool:
-        """True when any check is an error (no window, negative delay, ...): exit code 3."""
+        """True when any check is an error (no window, negative delay, damage ...): exit code 3."""
         return any(c.level == "error" for c in self.checks)
 
+    def with_contrast(self, contrast: ContrastResult) -> "Plan":
+        """The same plan with the contrast stage re-planned (e.g. over a wider span)."""
+        return replace(self, contrast=contrast)
 
-def make_plan(cavity: Cavity, dump: Union[str, int, None] = None) -> Plan:
+
+def make_plan(cavity: Cavity, dump: Union[DumpRule, str, int, None] = None) -> Plan:
     """Plan the cavity.  ``dump`` overrides the file's dump rule (``auto``, ``steady``, N)."""
-    from regentime.planning import contrast, stability, switching, timing
-
     if dump is not None:
-        cavity = replace(cavity, dump=dump)
+        cavity = replace(cavity, dump=DumpRule.of(dump))
     optics = cavity_optics(cavity)
     buildup = plan_buildup(cavity, optics)
-    switch_plan = switching.plan_switching(cavity, optics, buildup)
+    switch_plan = plan_switching(cavity, optics, buildup)
     # the ejected share scales every output alike: the dump choice and the sensitivities stay
-    buildup = buildup.with_switching_efficiency(getattr(switch_plan, "switching_efficiency", 1.0))
-    plan = Plan(cavity, optics, buildup, switch_plan)
-    plan.timing = timing.timing_table(cavity, optics, buildup, switch_plan)
-    plan.contrast = contrast.plan_contrast(cavity, optics, buildup, switch_plan)
-    plan.timing.rows.extend(getattr(plan.contrast, "timing_rows", None) or ())  # cleaner gate, if any
-    if cavity.pump.mode == "continuous":
-        plan.stability = stability.plan_stability_note(cavity, optics, buildup)
-    plan.checks = run_checks(plan)
-    return plan
+    buildup = buildup.with_switching_efficiency(switch_plan.switching_efficiency)
+    timing = timing_table(cavity, optics, buildup, switch_plan)
+    contrast = plan_contrast(cavity, optics, buildup, switch_plan)
+    timing = timing.with_extra_rows(contrast.timing_rows)  # the cleaner's gate, if any
+    stability = (plan_stability_note(cavity, optics, buildup)
+                 if cavity.pump.mode == "continuous" else None)
+    checks = run_checks(cavity, buildup, (switch_plan, timing, contrast, stability), stability)
+    return Plan(cavity, optics, buildup, switch_plan, timing, contrast, tuple(checks), stability)
 
 
-__all__ = ["Plan", "make_plan", "Check", "CAUTION", "CAUTION_SHORT"]
+__all__ = ["Plan", "make_plan", "Check", "DumpRule", "CAUTION", "CAUTION_SHORT"]

@@ -1,7 +1,7 @@
 """Steady state of a continuously pumped regen with the radially resolved (ring) gain model.
 
 With a Gaussian profile the crystal's state between shots is the stored fluence of every ring
-(DESIGN.md "Gain": the same law ring by ring; each ring recovers towards its own R·τ share).
+(docs/definitions.md "Gain": the same law ring by ring; each ring recovers towards its own R·τ share).
 The shot map j_{s+1} = F_N(j_s) then acts on a vector.  Its period-1 fixed point is found by
 iterating the map from the energy-only estimate, batched over round trips, with the slowest
 (geometric) mode extrapolated away (Aitken's Δ² idea applied to the dominant mode; Anderson

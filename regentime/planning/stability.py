@@ -32,6 +32,7 @@ from typing import Callable, Optional
 import numpy as np
 
 from regentime.model import Cavity
+from regentime.numfmt import eng
 from regentime.physics import dynamics as dyn
 from regentime.planning import steady
 from regentime.planning.checks import Check
@@ -531,8 +532,6 @@ def plan_stability_note(cavity: Cavity, optics, buildup) -> StabilityNote:
     nb = int(below[-1]) if below.size else None
     na = int(above[0]) if above.size else None
     checks = []
-    from regentime.reports.tables import eng
-
     where = f"at {eng(rate, 'Hz')}"
     if p != 1:
         kind = "irregular" if p == 0 else f"period {p}"

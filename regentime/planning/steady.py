@@ -1,6 +1,6 @@
 """Steady state of a continuously pumped regen across shots (period-1 fixed point).
 
-The shot-to-shot map x_{s+1} = F_N(x_s) of the stored energy at injection (DESIGN.md "Gain",
+The shot-to-shot map x_{s+1} = F_N(x_s) of the stored energy at injection (docs/definitions.md "Gain",
 continuous pump; M. Grishin, Opt. Express 15, 9434 (2007)) always has a fixed point between
 0 and the equilibrium Rτ (F_N(0) > 0, F_N(Rτ) ≤ Rτ).  It is found for every candidate N at once
 by the Illinois variant of regula falsi; it is the operating point if |F_N'(x*)| < 1 (period 1).

@@ -1,6 +1,6 @@
 """Pockels-cell switching windows, recommended edges, margins and voltage tolerance.
 
-``plan_switching(cavity, optics, buildup) -> SwitchPlan`` applies DESIGN.md ("Switching",
+``plan_switching(cavity, optics, buildup) -> SwitchPlan`` applies docs/definitions.md ("Switching",
 "Gate width"):
 
 * round trip k of the chosen seed pulse m starts at t_m + (k−1)·T_rt, t_m = arrival +
@@ -29,6 +29,7 @@ from typing import Optional
 
 from regentime.errors import InputError
 from regentime.model import Cavity, Space
+from regentime.numfmt import json_float
 from regentime.physics import jones
 from regentime.physics import switching as sw
 from regentime.physics.optics import C_LIGHT, CavityOptics
@@ -101,7 +102,7 @@ class SwitchPlan:
         return self.on_window is not None and self.off_window is not None
 
     def to_dict(self) -> dict:
-        """DESIGN.md's JSON ``switch`` object, plus a few extra keys."""
+        """The JSON ``switch`` object (docs/definitions.md, "JSON output"), plus a few extra keys."""
         return {
             "scheme": self.scheme,
             "on_window_s": list(self.on_window) if self.on_window else None,
@@ -110,7 +111,7 @@ class SwitchPlan:
             "off_edge_s": self.off_edge,
             "gate_width_s": self.gate_width,
             "margin_s": self.margin,
-            "margin_sigma": _json_float(self.margin_sigma),
+            "margin_sigma": json_float(self.margin_sigma),
             "seed_pulse_index": self.seed_pulse_index,
             "seed_time_s": self.seed_time,
             "full_retardance_rad": self.full_retardance,
@@ -123,10 +124,6 @@ class SwitchPlan:
             "edge": self.edge_shape,
             "voltage_tolerance": [r.to_dict() for r in self.voltage_tolerance],
         }
-
-
-def _json_float(x: float):
-    return None if math.isinf(x) or math.isnan(x) else x
 
 
 # ----- scheme check -----------------------------------------------------------------------

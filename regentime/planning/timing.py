@@ -1,6 +1,6 @@
 """The delay-generator setup table: one row per generator output.
 
-DESIGN.md, "Delay-generator settings": time zero is the generator's trigger input; a
+docs/definitions.md, "Delay-generator settings": time zero is the generator's trigger input; a
 channel's delay = the required event time − the device latency − the cable delay, with the
 cable delay = length/(velocity_factor · c).  The seed pulse m (arriving at the polarizer at
 t_m = arrival + m/train_rate) is the first for which every delay is ≥ 0; with a pulsed pump
@@ -18,10 +18,11 @@ reason in ``problem`` and an error check (exit code 3).
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from typing import Optional
 
 from regentime.model import Cavity
+from regentime.numfmt import eng, ns
 from regentime.physics.optics import CavityOptics
 from regentime.planning.checks import Check
 
@@ -55,6 +56,10 @@ class TimingTable:
     seed_time: float
     resolution: Optional[float] = None
     checks: list = field(default_factory=list)
+
+    def with_extra_rows(self, rows) -> "TimingTable":
+        """A copy with ``rows`` appended (the cleaner's gate channel, planned with the contrast)."""
+        return replace(self, rows=[*self.rows, *rows])
 
     def to_rows_dicts(self) -> list[dict]:
         return [r.to_dict() for r in self.rows]
@@ -137,13 +142,7 @@ def _round(value: float, resolution: Optional[float]) -> float:
 
 
 def _eng(x: float) -> str:
-    from regentime.reports.tables import eng
-
     return eng(x, "s")
-
-
-def _ns(x: float) -> str:
-    return f"{x * 1e9:.3f} ns"
 
 
 def timing_table(cavity: Cavity, optics: CavityOptics, buildup, switching) -> TimingTable:
@@ -156,14 +155,14 @@ def timing_table(cavity: Cavity, optics: CavityOptics, buildup, switching) -> Ti
     res = cavity.generator.resolution
     rows: list[TimingRow] = []
     checks: list[Check] = []
-    seed_text = f"seed pulse #{sp.seed_pulse_index} at the polarizer {_ns(t_m)}"
+    seed_text = f"seed pulse #{sp.seed_pulse_index} at the polarizer {ns(t_m)}"
 
     def window_text(window, edge) -> str:
         if window is None:
             return "NO WINDOW (edge placed mid-gap)"
         half = 0.5 * (window[1] - window[0])
         sig = f" = {half / s.jitter:.1f} σ" if s.jitter > 0 else ""
-        return f"window {_ns(window[0])} … {_ns(window[1])}, margin ±{half * 1e9:.3f} ns{sig}"
+        return f"window {ns(window[0])} … {ns(window[1])}, margin ±{half * 1e9:.3f} ns{sig}"
 
     for ch in _channels(cavity, sp.on_edge_rel, sp.off_edge_rel, n, t_rt):
         event = t_m + ch.event_rel
@@ -173,27 +172,27 @@ def timing_table(cavity: Cavity, optics: CavityOptics, buildup, switching) -> Ti
         problem = None
         parts = []
         if ch.drives == "pump":
-            parts.append(f"pump light at {_ns(event)}, {_eng(cavity.pump.lead)} before {seed_text}; "
-                         f"latency {_ns(ch.latency)}")
+            parts.append(f"pump light at {ns(event)}, {_eng(cavity.pump.lead)} before {seed_text}; "
+                         f"latency {ns(ch.latency)}")
         elif ch.drives in ("switch_on", "gate"):
-            parts.append(f"switch-on edge (50 %) at the cell {_ns(event)}; "
-                         + window_text(sp.on_window, sp.on_edge) + f"; {seed_text}; latency {_ns(ch.latency)}")
+            parts.append(f"switch-on edge (50 %) at the cell {ns(event)}; "
+                         + window_text(sp.on_window, sp.on_edge) + f"; {seed_text}; latency {ns(ch.latency)}")
             if sp.on_window is None:
                 problem = "no switch-on window (see checks)"
         elif ch.drives == "switch_off":
-            parts.append(f"switch-off edge (50 %) at the cell {_ns(event)}, after round trip {n}; "
-                         + window_text(sp.off_window, sp.off_edge) + f"; latency {_ns(ch.latency)}")
+            parts.append(f"switch-off edge (50 %) at the cell {ns(event)}, after round trip {n}; "
+                         + window_text(sp.off_window, sp.off_edge) + f"; latency {ns(ch.latency)}")
             if sp.off_window is None:
                 problem = "no switch-off window (see checks)"
         else:
             lead = scope_lead(cavity, n, t_rt)
             how = "scope.lead" if cavity.scope.lead is not None else f"one build-up, {n} round trips"
-            parts.append(f"scope trigger at {_ns(event)}, {_eng(lead)} ({how}) before the switch-out")
+            parts.append(f"scope trigger at {ns(event)}, {_eng(lead)} ({how}) before the switch-out")
         if ch.drives == "gate":
             w_exact = (sp.off_edge - s.off_latency) - (sp.on_edge - s.on_latency)
             width = _round(w_exact, res)
-            parts.append(f"falling edge → switch-off at the cell {_ns(sp.off_edge)} after round trip {n}; "
-                         + window_text(sp.off_window, sp.off_edge) + f"; off latency {_ns(s.off_latency)}")
+            parts.append(f"falling edge → switch-off at the cell {ns(sp.off_edge)} after round trip {n}; "
+                         + window_text(sp.off_window, sp.off_edge) + f"; off latency {ns(s.off_latency)}")
             if sp.off_window is None and problem is None:
                 problem = "no switch-off window (see checks)"
             elif sp.off_window is None:
@@ -204,12 +203,12 @@ def timing_table(cavity: Cavity, optics: CavityOptics, buildup, switching) -> Ti
         if res:
             parts.append(f"rounded to the {res * 1e12:.4g} ps step by {rounding * 1e12:+.1f} ps")
         if exact < -_EPS:
-            hard.append(f"negative delay {_ns(exact)}: the event comes before its trigger can")
+            hard.append(f"negative delay {ns(exact)}: the event comes before its trigger can")
         if ch.drives in ("switch_off", "gate") and sp.gate_width > s.max_gate:
-            hard.append(f"gate {_ns(sp.gate_width)} longer than the driver's max_gate {_ns(s.max_gate)}")
+            hard.append(f"gate {ns(sp.gate_width)} longer than the driver's max_gate {ns(s.max_gate)}")
         if ch.drives in ("switch_off", "gate") and event > 1.0 / cavity.repetition_rate:
-            hard.append(f"the switch-out at {_ns(event)} comes after the next trigger "
-                        f"(shot period {_ns(1.0 / cavity.repetition_rate)})")
+            hard.append(f"the switch-out at {ns(event)} comes after the next trigger "
+                        f"(shot period {ns(1.0 / cavity.repetition_rate)})")
         for h in hard:
             problem = _join(problem, h)
             checks.append(Check("error", "timing", f"{cavity.outputs.get(ch.drives, ch.drives)} "

@@ -7,7 +7,8 @@ import json
 import numpy as np
 
 from regentime.reports.plan_json import _clean, buildup_dict
-from regentime.reports.tables import csv_table, eng, md_table, text_table
+from regentime.numfmt import eng
+from regentime.reports.tables import csv_table, md_table, text_table
 
 HEADERS = ("RT", "energy", "out if dumped", "peak fluence", "log gain", "stored", "S_pump", "S_seed", "B", "")
 CSV_HEADERS = ("round_trip", "energy_J", "output_energy_J", "peak_fluence_J_m2", "log_gain",

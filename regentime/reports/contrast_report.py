@@ -11,7 +11,8 @@ import json
 import math
 from typing import Optional
 
-from regentime.reports.tables import csv_table, eng, md_table, text_table
+from regentime.numfmt import eng
+from regentime.reports.tables import csv_table, md_table, text_table
 
 _KIND = {"pre": "pre-pulse (leak)", "post": "post-pulse", "seed": "seed leak"}
 
@@ -38,9 +39,7 @@ def _caution() -> str:
 
 def contrast_summary_lines(plan) -> list[str]:
     """A few lines for the setup card: nearest/worst pre-pulse, worst post-pulse, cleaner."""
-    c = getattr(plan, "contrast", None)
-    if c is None:
-        return ["contrast: not computed"]
+    c = plan.contrast
     s = c.summary
     lines = [
         f"nearest pre-pulse (−{eng(c.round_trip_time, 's')}): {_ratio(s.nearest_pre_ratio)} "

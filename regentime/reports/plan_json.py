@@ -1,4 +1,4 @@
-"""The plan as one JSON object (the contract for tools and tests: DESIGN.md "Output").
+"""The plan as one JSON object (the contract for tools and tests: docs/definitions.md "JSON output").
 
 SI units, the unit in each key name.  Infinite or undefined numbers become ``null`` (JSON has
 no infinity); the reason is given next to them where it matters.

@@ -12,16 +12,12 @@ import datetime as _dt
 import math
 from typing import Optional
 
-from regentime.reports.tables import csv_table, eng, md_table, text_table
+from regentime.numfmt import eng, ns
+from regentime.reports.contrast_report import contrast_summary_lines
+from regentime.reports.tables import csv_table, md_table, text_table
 
 _DRIVES = {"pump": "pump laser", "switch_on": "cell switch-on", "switch_off": "cell switch-off",
            "gate": "cell gate", "scope": "scope trigger", "cleaner": "cleaner cell"}
-
-
-def _ns(x: Optional[float]) -> str:
-    if x is None or (isinstance(x, float) and math.isnan(x)):
-        return "—"
-    return f"{x * 1e9:.3f} ns"
 
 
 def _pct(x: float) -> str:
@@ -47,22 +43,22 @@ def key_lines(plan) -> list[str]:
     b = plan.buildup
     sp = plan.switching
     lines = [
-        f"round trip T_rt {_ns(plan.round_trip_time)} (optical path {plan.optics.optical_path:.4f} m one way)",
+        f"round trip T_rt {ns(plan.round_trip_time)} (optical path {plan.optics.optical_path:.4f} m one way)",
         f"switch out after round trip {b.dump_round_trip} ({b.rule}); output {eng(b.output_energy, 'J')}, "
         f"extraction {b.extraction_efficiency:.1%}",
     ]
     if sp is not None:
-        lines.append(f"seed pulse #{sp.seed_pulse_index}: reaches the polarizer {_ns(sp.seed_time)} after the "
-                     f"trigger input (arrival {_ns(plan.cavity.seed.arrival)} + {sp.seed_pulse_index} × "
-                     f"{_ns(1.0 / plan.cavity.seed.train_rate)})")
+        lines.append(f"seed pulse #{sp.seed_pulse_index}: reaches the polarizer {ns(sp.seed_time)} after the "
+                     f"trigger input (arrival {ns(plan.cavity.seed.arrival)} + {sp.seed_pulse_index} × "
+                     f"{ns(1.0 / plan.cavity.seed.train_rate)})")
     return lines
 
 
 def table_rows(plan) -> list[list[str]]:
     rows = []
     for r in plan.timing.rows:
-        rows.append([r.output, _DRIVES.get(r.drives, r.drives), _ns(r.delay),
-                     _ns(r.width) if r.width is not None else "—", _ns(r.event),
+        rows.append([r.output, _DRIVES.get(r.drives, r.drives), ns(r.delay),
+                     ns(r.width) if r.width is not None else "—", ns(r.event),
                      "CANNOT BE MET" if r.problem else "ok"])
     return rows
 
@@ -77,17 +73,17 @@ def window_lines(plan) -> list[str]:
     for label, w, e, gap in (("switch-on ", sp.on_window, sp.on_edge, sp.on_gap),
                              ("switch-off", sp.off_window, sp.off_edge, sp.off_gap)):
         if w is None:
-            out.append(f"{label}: NO WINDOW between the crossings at {_ns(gap[0])} and {_ns(gap[1])}; "
-                       f"edge placed mid-gap at {_ns(e)}")
+            out.append(f"{label}: NO WINDOW between the crossings at {ns(gap[0])} and {ns(gap[1])}; "
+                       f"edge placed mid-gap at {ns(e)}")
         else:
             half = 0.5 * (w[1] - w[0])
             sig = _sigma(half / sp.jitter) if sp.jitter > 0 else _sigma(math.inf)
-            out.append(f"{label}: {_ns(w[0])} … {_ns(w[1])} (width {_ns(w[1] - w[0])}); edge {_ns(e)}; "
-                       f"margin ±{_ns(half)} = {sig}")
+            out.append(f"{label}: {ns(w[0])} … {ns(w[1])} (width {ns(w[1] - w[0])}); edge {ns(e)}; "
+                       f"margin ±{ns(half)} = {sig}")
     rule = "(N−1)·T_rt" if sp.scheme == "quarter-wave" else "N·T_rt"
     k = n - 1 if sp.scheme == "quarter-wave" else n
-    out.append(f"gate width {_ns(sp.gate_width)} = {k} × T_rt ({sp.scheme} scheme: {rule}, N = {n})")
-    out.append(f"margin (half the narrower window) ±{_ns(sp.margin)} = {_sigma(sp.margin_sigma)} of "
+    out.append(f"gate width {ns(sp.gate_width)} = {k} × T_rt ({sp.scheme} scheme: {rule}, N = {n})")
+    out.append(f"margin (half the narrower window) ±{ns(sp.margin)} = {_sigma(sp.margin_sigma)} of "
                f"{sp.jitter * 1e12:.0f} ps rms jitter")
     out.append(f"at the recommended edges: trapped {_pct(sp.trapped_share)}, ejected {_pct(sp.ejected_share)} "
                f"(1 = perfect optics); leak per return while trapped {sp.leak_per_return:.3g}")
@@ -109,12 +105,6 @@ def check_lines(plan) -> list[str]:
 
 
 def contrast_lines(plan) -> list[str]:
-    if getattr(plan, "contrast", None) is None:
-        return []
-    try:
-        from regentime.reports.contrast_report import contrast_summary_lines
-    except ImportError:
-        return []
     return list(contrast_summary_lines(plan))
 
 
@@ -133,7 +123,7 @@ def _assumptions(plan) -> list[str]:
         out.append(f"delays rounded to the generator step of {cav.generator.resolution * 1e12:.4g} ps")
     if cav.pump.mode == "pulsed":
         out.append(f"pump light leads the seed pulse by {cav.pump.lead * 1e9:.4g} ns "
-                   f"(pump latency {_ns(cav.pump.latency)})")
+                   f"(pump latency {ns(cav.pump.latency)})")
     else:
         out.append("continuous pump: no pump channel")
     return out

@@ -14,7 +14,8 @@ import math
 
 import numpy as np
 
-from regentime.reports.tables import csv_table, eng, md_table, text_table
+from regentime.numfmt import eng, json_float
+from regentime.reports.tables import csv_table, md_table, text_table
 
 # Our own marks: the digit of the period where it has one, otherwise a symbol.
 MARKS = {1: ".", 2: "2", 4: "4", 8: "8", 16: "H", 0: "#", -1: " ", -2: "?"}
@@ -214,16 +215,11 @@ def stability_csv(m, noise=None, mc=None, noise_rows=None) -> str:
             rate = float(rates[j]) if rates is not None else float(m.rates_Hz[0])
             seed = float(m.seed_energies_J[j] if m.axis == "seed" else m.seed_energies_J[0])
             pump = float(m.pump_W[j] if m.axis == "pump" else m.pump_W[0])
-            rows.append([int(n), rate, seed, pump, int(m.period[i, j]), _num(m.energy_J[i, j]),
-                         _num(m.energy_min_J[i, j]), _num(m.energy_max_J[i, j])])
+            rows.append([int(n), rate, seed, pump, int(m.period[i, j]), json_float(m.energy_J[i, j]),
+                         json_float(m.energy_min_J[i, j]), json_float(m.energy_max_J[i, j])])
     pump_col = "pump_power_W" if m.continuous else "pump_energy_J"
     return csv_table(["round_trips", "rate_Hz", "seed_energy_J", pump_col, "period", "energy_J",
                       "energy_min_J", "energy_max_J"], rows)
-
-
-def _num(x):
-    x = float(x)
-    return x if math.isfinite(x) else None
 
 
 def stability_md(m, noise=None, mc=None, noise_rows=None) -> str:

@@ -4,38 +4,7 @@ from __future__ import annotations
 
 import csv
 import io
-import math
 from typing import Iterable, Sequence
-
-_PREFIX = {-15: "f", -12: "p", -9: "n", -6: "µ", -3: "m", 0: "", 3: "k", 6: "M", 9: "G"}
-
-
-def eng(value, unit: str = "", digits: int = 4, fixed_prefix: str | None = None) -> str:
-    """Engineering notation with an SI prefix: eng(3.4e-9, 's') -> '3.4 ns'.
-
-    ``digits`` significant digits; ``fixed_prefix`` forces a prefix ("n" for a column of ns).
-    None, NaN -> '—'.
-    """
-    if value is None:
-        return "—"
-    v = float(value)
-    if math.isnan(v):
-        return "—"
-    if math.isinf(v):
-        return ("∞" if v > 0 else "−∞") + (f" {unit}" if unit else "")
-    if fixed_prefix is not None:
-        exp = {p: e for e, p in _PREFIX.items()}[fixed_prefix]
-    elif v == 0:
-        exp = 0
-    else:
-        exp = int(math.floor(math.log10(abs(v)) / 3) * 3)
-        exp = max(-15, min(9, exp))
-    scaled = v / 10 ** exp
-    if fixed_prefix is not None:
-        text = f"{scaled:.{digits}f}"
-    else:
-        text = f"{scaled:.{digits}g}"
-    return f"{text} {_PREFIX[exp]}{unit}".rstrip()
 
 
 def text_table(headers: Sequence[str], rows: Iterable[Sequence[object]], align: str | None = None,

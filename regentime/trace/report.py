@@ -8,6 +8,7 @@ from __future__ import annotations
 import json
 import math
 
+from regentime.numfmt import eng
 from regentime.trace.result import TraceResult
 
 _NAMES = {
@@ -25,25 +26,11 @@ _ORDER = ["initial_log_gain", "single_pass_gain", "round_trip_loss", "round_trip
           "seed_energy_J", "start_energy_J", "start_log_gain", "scale_per_J", "scale_per_E_sat"]
 
 
-def _eng(value, unit: str, digits: int = 5) -> str:
-    if value is None or (isinstance(value, float) and not math.isfinite(value)):
-        return "—"
-    if value == 0:
-        return f"0 {unit}".strip()
-    prefixes = [(1e-15, "f"), (1e-12, "p"), (1e-9, "n"), (1e-6, "µ"), (1e-3, "m"), (1.0, ""), (1e3, "k")]
-    mag = abs(value)
-    factor, p = prefixes[0]
-    for f, pre in prefixes:
-        if mag >= f:
-            factor, p = f, pre
-    return f"{value / factor:.{digits}g} {p}{unit}".strip()
-
-
 def _num(value, unit: str = "") -> str:
     if value is None:
         return "—"
     if unit == "J":
-        return _eng(value, "J", 4)
+        return eng(value, "J", 4)
     if unit == "g":
         return f"{value:.4g}"
     if unit == "%":
@@ -65,8 +52,8 @@ def rows(result: TraceResult) -> list[tuple[str, str]]:
     """(label, value) rows of the summary, shared by text and Markdown."""
     r, tr = result, result.train
     out = [
-        ("measured round trip", f"{_eng(r.measured_round_trip_s, 's', 7)} ± {_eng(r.measured_round_trip_sigma_s, 's', 3)}"),
-        ("model round trip (cavity file)", _eng(r.model_round_trip_s, "s", 7)),
+        ("measured round trip", f"{eng(r.measured_round_trip_s, 's', 7)} ± {eng(r.measured_round_trip_sigma_s, 's', 3)}"),
+        ("model round trip (cavity file)", eng(r.model_round_trip_s, "s", 7)),
         ("length error (one-way optical path)",
          "—" if r.length_error_m is None else f"{r.length_error_m * 1e3:+.2f} mm "
          + ("(real cavity longer than the file)" if r.length_error_m > 0 else "(real cavity shorter than the file)")),
@@ -75,7 +62,7 @@ def rows(result: TraceResult) -> list[tuple[str, str]]:
         ("peak of the build-up", f"pulse {r.peak_index}" + (" (extrapolated by the fit)" if r.peak_extrapolated else "")
          + ("" if r.peak_source == "fit" else " (largest measured pulse)")),
         ("switch out", _shift_words(r)),
-        ("switch-off delay change", f"{_eng(r.switch_off_shift_s, 's', 5)}" if r.switch_off_shift_s else "none"),
+        ("switch-off delay change", f"{eng(r.switch_off_shift_s, 's', 5)}" if r.switch_off_shift_s else "none"),
     ]
     return out
 
@@ -109,7 +96,7 @@ def format_text(result: TraceResult) -> str:
     if result.trace is not None:
         t = result.trace
         lines.append(f"  {t.source}: channel '{t.channel}', {t.n_samples} samples every "
-                     f"{_eng(t.sample_interval, 's', 4)} ({t.layout})")
+                     f"{eng(t.sample_interval, 's', 4)} ({t.layout})")
     lines.append("")
     r = rows(result)
     w = max(len(a) for a, _ in r)
@@ -125,7 +112,7 @@ def format_text(result: TraceResult) -> str:
         for row in fr:
             lines.append("  " + "  ".join(c.ljust(ws[i]) for i, c in enumerate(row)))
         if f.peak_energy is not None:
-            lines.append(f"  predicted peak energy at the reference point: {_eng(f.peak_energy, 'J', 4)}")
+            lines.append(f"  predicted peak energy at the reference point: {eng(f.peak_energy, 'J', 4)}")
     if result.notes:
         lines += [""] + [f"note: {n}" for n in result.notes]
     lines += [""] + result.cautions
@@ -137,7 +124,7 @@ def format_markdown(result: TraceResult) -> str:
     if result.trace is not None:
         t = result.trace
         lines += [f"`{t.source}`, channel `{t.channel}`, {t.n_samples} samples every "
-                  f"{_eng(t.sample_interval, 's', 4)} ({t.layout}).", ""]
+                  f"{eng(t.sample_interval, 's', 4)} ({t.layout}).", ""]
     lines += ["| quantity | value |", "|---|---|"]
     lines += [f"| {a} | {b} |" for a, b in rows(result)]
     fr = fit_rows(result)

@@ -110,6 +110,7 @@ class PlannerApp(FileActions, TraceActions, App[int]):
         self.saved_text = ""
         self.disk_stamp: Optional[tuple] = None
         self.cross_marked: dict[str, str] = {}  # rows marked by whole-file checks
+        self._summary_key: Optional[tuple] = None  # (width, lines) of the summary bar's last layout
         self.input_problems: list[str] = []
         self.last_plan_seconds = 0.0
         self.watch_interval = watch_interval
@@ -220,7 +221,7 @@ class PlannerApp(FileActions, TraceActions, App[int]):
         bar.set_class(bool(self.input_problems), "stale")
         if text != str(bar.content):
             key = (self.size.width, len(text) // max(1, self.size.width - 2))
-            bar.update(text, layout=key != getattr(self, "_summary_key", None))
+            bar.update(text, layout=key != self._summary_key)
             self._summary_key = key
 
     # ---- planning --------------------------------------------------------------------------
@@ -306,7 +307,7 @@ class PlannerApp(FileActions, TraceActions, App[int]):
                                for e in errors]
         self._clear_cross_marks()
         for err in errors:
-            path = getattr(err, "path", "")
+            path = err.path if isinstance(err, InputError) else ""
             if path:  # kept also for rows not on screen yet (an element editor opening)
                 self.cross_marked.setdefault(path, _reason(err))
             for row in self._rows(path):

@@ -19,7 +19,7 @@ from textual.message import Message
 from textual.reactive import reactive
 from textual.widget import Widget
 
-from regentime.reports.tables import eng
+from regentime.numfmt import eng
 from regentime.tui.canvas import Canvas, nice_ticks, scale
 
 _LEFT = 9  # columns for the y labels

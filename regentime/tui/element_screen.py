@@ -57,7 +57,7 @@ class ElementScreen(ModalScreen[None]):
 
     def on_mount(self) -> None:
         rows = self.query(FieldRow)
-        marks = getattr(self.app, "cross_marked", {})  # problems the whole file has now
+        marks = self.app.cross_marked  # problems the whole file has now
         for row in rows:
             if row.path in marks and row.reason is None:
                 row.set_error(marks[row.path])

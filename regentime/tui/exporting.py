@@ -1,32 +1,18 @@
 """Exports from the TUI: the generator table (md/csv/json) and the build-up plot (png).
 
-Uses the reports layer (setup card, plan JSON, plot) when those modules are present; a format
-whose report module is not in this build raises an error that says so.  Files are written
-atomically (temporary file + rename).
+The same reports as the command line (setup card, plan JSON, build-up plot); files are
+written atomically (temporary file + rename).
 """
 
 from __future__ import annotations
 
-import importlib
 import json
-import math
 import os
 
 from regentime.errors import InputError
-from regentime.planning.plan import CAUTION
-from regentime.tui import view
 
 FORMATS = {".md": "Markdown table", ".csv": "CSV table", ".json": "plan JSON",
            ".png": "build-up plot"}
-
-
-def _optional(name: str):
-    try:
-        return importlib.import_module(name)
-    except ModuleNotFoundError as exc:
-        if exc.name == name:
-            return None
-        raise
 
 
 def default_name(source: str | None, ext: str = ".md") -> str:
@@ -35,50 +21,24 @@ def default_name(source: str | None, ext: str = ".md") -> str:
 
 
 def markdown(plan) -> str:
-    card = _optional("regentime.reports.setup_card")
-    fn = getattr(card, "setup_card_md", None) if card is not None else None
-    if fn is not None:
-        return fn(plan)
-    from regentime.reports.tables import md_table
+    """The setup card in Markdown, as ``regentime plan --format md`` writes it."""
+    from regentime.reports.setup_card import setup_card_md
 
-    lines = [f"# Setup: {plan.cavity.name}", "", view.summary_line(plan), ""]
-    lines += [f"- {x}" for x in view.switching_lines(plan)]
-    lines.append("")
-    if plan.timing is None:
-        lines.append(f"Generator table: {view.NOT_YET}")
-    else:
-        headers, cells = view.table_rows(plan)
-        lines.append(md_table(headers, cells, align="llrrl"))
-    lines += ["", "## Contrast", ""] + [f"- {x}" for x in view.contrast_lines(plan)]
-    lines += ["", "## Checks", ""] + [f"- {c.level}: {c.name}: {c.message}" for c in plan.checks]
-    lines += ["", f"> {CAUTION}", ""]
-    return "\n".join(lines)
+    return setup_card_md(plan)
 
 
 def csv_text(plan) -> str:
-    """The generator table with SI numbers (delay_s, width_s) for spreadsheets."""
-    if plan.timing is None:
-        raise InputError("export", "csv", f"a plan with a generator table ({view.NOT_YET})")
-    card = _optional("regentime.reports.setup_card")
-    if card is not None and hasattr(card, "timing_csv"):
-        return card.timing_csv(plan)  # the same CSV as `regentime plan --format csv`
-    from regentime.reports.tables import csv_table
+    """The generator table with SI numbers, as ``regentime plan --format csv`` writes it."""
+    from regentime.reports.setup_card import timing_csv
 
-    rows = []
-    for r in plan.timing.rows:
-        width = getattr(r, "width", None)
-        rows.append([r.output, r.drives, float(r.delay),
-                     float(width) if width is not None and math.isfinite(float(width)) else "",
-                     getattr(r, "note", "") or "", getattr(r, "problem", "") or ""])
-    return csv_table(("output", "drives", "delay_s", "width_s", "note", "problem"), rows)
+    return timing_csv(plan)
 
 
 def json_text(plan) -> str:
-    mod = _optional("regentime.reports.plan_json")
-    if mod is None or not hasattr(mod, "plan_to_dict"):
-        raise InputError("export", "json", "a build with regentime.reports.plan_json "
-                         "(not in this build yet)")
-    return json.dumps(mod.plan_to_dict(plan), indent=2, ensure_ascii=False) + "\n"
+    """The plan JSON, as ``regentime plan --format json`` writes it."""
+    from regentime.reports.plan_json import plan_to_dict
+
+    return json.dumps(plan_to_dict(plan), indent=2, ensure_ascii=False) + "\n"
 
 
 def export(plan, path: str) -> str:
@@ -92,11 +52,9 @@ def export(plan, path: str) -> str:
     if not os.path.isdir(folder):
         raise InputError("export", path, "a path in an existing folder")
     if ext == ".png":
-        plots = _optional("regentime.reports.plots")
-        if plots is None or not hasattr(plots, "plot_buildup"):
-            raise InputError("export", path, "a build with regentime.reports.plots "
-                             "(not in this build yet)")
-        plots.plot_buildup(plan, path)
+        from regentime.reports.plots import plot_buildup
+
+        plot_buildup(plan, path)
         return FORMATS[ext]
     text = {".md": markdown, ".csv": csv_text, ".json": json_text}[ext](plan)
     write_atomic(path, text)

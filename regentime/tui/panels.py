@@ -59,17 +59,14 @@ class TimingPanel(ResultPanel):
         for line in view.switching_lines(plan):
             text.append(line + "\n")
         text.append("\n")
-        if self.table is None:
-            text.append(f"generator table: {view.NOT_YET}\n", style="dim")
-        else:
-            for line in self.table.header:
-                text.append(line + "\n", style="bold")
-            for line, note, problem in self.table.rows:
-                text.append(line + "\n", style="bold red" if problem else None)
-                if problem:
-                    text.append(f"   ↳ cannot be met: {problem}\n", style="red")
-                if note and self.notes:
-                    text.append(f"   {note}\n", style="dim")
+        for line in self.table.header:
+            text.append(line + "\n", style="bold")
+        for line, note, problem in self.table.rows:
+            text.append(line + "\n", style="bold red" if problem else None)
+            if problem:
+                text.append(f"   ↳ cannot be met: {problem}\n", style="red")
+            if note and self.notes:
+                text.append(f"   {note}\n", style="dim")
         text.rstrip()
         self.show_text(text)
 

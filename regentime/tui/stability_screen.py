@@ -15,7 +15,7 @@ from textual.screen import ModalScreen
 from textual.widgets import Static
 from textual.worker import get_current_worker
 
-from regentime.reports.tables import eng
+from regentime.numfmt import eng
 
 # period code -> (character, style); codes as in StabilityMap.period
 CELLS = {1: ("·", "green"), 2: ("2", "yellow"), 4: ("4", "dark_orange"), 8: ("8", "red"),

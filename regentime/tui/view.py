@@ -1,8 +1,6 @@
 """Plan -> text for the TUI's regions.  Formatting only: every number comes from the plan.
 
-Kept free of Textual so the same strings can be checked in plain tests.  Stages that are not
-written yet (``plan.switching``, ``plan.timing``, ``plan.contrast`` are None) are shown as
-"not available yet", never as made-up numbers.
+Kept free of Textual so the same strings can be checked in plain tests.
 """
 
 from __future__ import annotations
@@ -11,18 +9,7 @@ import math
 from dataclasses import dataclass, field
 from typing import Any, Optional
 
-from regentime.reports.tables import eng
-
-NOT_YET = "not available yet (this planning stage is not in this build)"
-
-
-def _f(x: Any) -> Optional[float]:
-    try:
-        v = float(x)
-    except (TypeError, ValueError):
-        return None
-    return v if math.isfinite(v) else None
-
+from regentime.numfmt import eng, finite_or_none, ns
 
 def round_trip_text(plan) -> str:
     """Round-trip time to 0.1 ps, as engineers compare it with a photodiode: '11.2615 ns'."""
@@ -45,42 +32,24 @@ def summary_line(plan, override: Any = None) -> str:
     return " │ ".join(parts)
 
 
-def ns(x: Any) -> str:
-    """Nanoseconds with 3 decimals (1 ps), as the setup card prints times: '389.439 ns'."""
-    v = _f(x)
-    return "—" if v is None else f"{v * 1e9:.3f} ns"
-
-
 def switching_lines(plan) -> list[str]:
     """Switch-on/off windows, edges, gate width and jitter margin (ns and sigmas)."""
     s = plan.switching
-    if s is None:
-        return [f"Pockels-cell windows: {NOT_YET}"]
-    lines = []
-    scheme = getattr(s, "scheme", None) or getattr(plan.cavity.switch, "scheme", "")
-    seed_i = getattr(s, "seed_pulse_index", None)
-    head = f"{scheme} scheme"
-    if seed_i is not None:
-        head += f", seed pulse #{seed_i} trapped"
-    lines.append(head)
-    for label, win, edge in (("switch-on ", getattr(s, "on_window", None), getattr(s, "on_edge", None)),
-                             ("switch-off", getattr(s, "off_window", None), getattr(s, "off_edge", None))):
+    lines = [f"{s.scheme} scheme, seed pulse #{s.seed_pulse_index} trapped"]
+    for label, win, edge in (("switch-on ", s.on_window, s.on_edge),
+                             ("switch-off", s.off_window, s.off_edge)):
         if win is None:
             lines.append(f"{label} edge {ns(edge)}  NO WINDOW (the edge cannot be placed cleanly)")
             continue
-        a, b = (_f(win[0]), _f(win[1])) if len(win) == 2 else (None, None)
-        w = (b - a) if a is not None and b is not None else None
-        lines.append(f"{label} edge {ns(edge)}, window {ns(a)[:-3]} … {ns(b)} ({ns(w)})")
-    sigma = _f(getattr(s, "margin_sigma", None))
-    raw_sigma = getattr(s, "margin_sigma", None)
-    if sigma is not None:
-        sig = f"{sigma:.1f} σ"
-    elif isinstance(raw_sigma, float) and math.isinf(raw_sigma):
+        a, b = win
+        lines.append(f"{label} edge {ns(edge)}, window {ns(a)[:-3]} … {ns(b)} ({ns(b - a)})")
+    if math.isinf(s.margin_sigma):
         sig = "∞ σ, no jitter given"
-    else:
+    elif math.isnan(s.margin_sigma):
         sig = "— σ"
-    lines.append(f"gate width {ns(getattr(s, 'gate_width', None))}   "
-                 f"margin ±{ns(getattr(s, 'margin', None))} = {sig} of jitter")
+    else:
+        sig = f"{s.margin_sigma:.1f} σ"
+    lines.append(f"gate width {ns(s.gate_width)}   margin ±{ns(s.margin)} = {sig} of jitter")
     return lines
 
 
@@ -90,84 +59,38 @@ class TableView:
 
     header: list[str]
     rows: list[tuple[str, str, Optional[str]]] = field(default_factory=list)
-    source: str = ""  # "setup card" | "timing rows"
 
 
-HEADERS = ("output", "drives", "delay", "width", "note")
-
-
-def _cell_time(x) -> str:
-    return eng(x, "s", 4, "n") if _f(x) is not None else ""
-
-
-def generator_table(plan) -> Optional[TableView]:
-    """The delay-generator table as ``plan`` prints it (None when timing is not available).
-
-    Uses the setup card's rows and columns (:mod:`regentime.reports.setup_card`, the same
-    text-table renderer as ``regentime plan``); each row's note and problem come with it.
-    Without the setup card, renders ``plan.timing.rows`` with the shared renderer.
-    """
-    if plan.timing is None:
-        return None
+def generator_table(plan) -> TableView:
+    """The delay-generator table as ``regentime plan`` prints it: the setup card's rows and
+    columns (:mod:`regentime.reports.setup_card`, the same text-table renderer); each row's
+    note and problem come with it."""
+    from regentime.reports.setup_card import TABLE_HEAD, table_rows
     from regentime.reports.tables import text_table
 
-    rows = list(getattr(plan.timing, "rows", []) or [])
-    card = _setup_card()
-    head = card.TABLE_HEAD
-    if card is not None and head is not None and hasattr(card, "table_rows"):
-        lines = text_table(head, card.table_rows(plan), align="llrrrl", indent="").split("\n")
-        source = "setup card"
-    else:
-        cells = [[r.output, r.drives, _cell_time(r.delay) or "—",
-                  _cell_time(getattr(r, "width", None))] for r in rows]
-        lines = text_table(HEADERS[:4], cells, align="llrr", indent="").split("\n")
-        source = "timing rows"
-    out = [(lines[i + 2], getattr(r, "note", "") or "", getattr(r, "problem", None) or None)
-           for i, r in enumerate(rows)]
-    return TableView(lines[:2], out, source)
+    lines = text_table(TABLE_HEAD, table_rows(plan), align="llrrrl", indent="").split("\n")
+    out = [(lines[i + 2], r.note, r.problem) for i, r in enumerate(plan.timing.rows)]
+    return TableView(lines[:2], out)
 
 
-def table_rows(plan) -> tuple[tuple[str, ...], list[list[str]]]:
-    """Headers and cells of the generator table, for the Markdown/CSV export."""
-    rows = list(getattr(plan.timing, "rows", []) or []) if plan.timing is not None else []
-    cells = []
-    for r in rows:
-        cells.append([str(r.output), str(r.drives),
-                      eng(r.delay, "s", 4, "n") if _f(r.delay) is not None else "—",
-                      eng(getattr(r, "width", None), "s", 4, "n")
-                      if _f(getattr(r, "width", None)) is not None else "",
-                      (getattr(r, "note", "") or "") +
-                      (f" PROBLEM: {r.problem}" if getattr(r, "problem", None) else "")])
-    return HEADERS, cells
+def _ratio(x: float) -> str:
+    if math.isinf(x):
+        return "∞ (no satellite)"
+    if not x > 0:
+        return "—"
+    return f"{x:.3g}:1 ({10 * math.log10(x):.1f} dB)"
 
 
 def contrast_lines(plan) -> list[str]:
+    """Nearest and worst pre-pulse, worst post-pulse; after the cleaner when there is one."""
     c = plan.contrast
-    if c is None:
-        return [f"contrast: {NOT_YET}"]
-
-    def ratio(x) -> str:
-        try:
-            if math.isinf(float(x)):
-                return "∞ (no satellite)"
-        except (TypeError, ValueError):
-            pass
-        v = _f(x)
-        if v is None:
-            return "—"
-        db = 10 * math.log10(v) if v > 0 else float("nan")
-        return f"{v:.3g}:1 ({db:.1f} dB)"
-
-    lines = [f"nearest pre-pulse  {ratio(getattr(c, 'nearest_pre_ratio', None))}",
-             f"worst pre-pulse    {ratio(getattr(c, 'worst_pre_ratio', None))}",
-             f"worst post-pulse   {ratio(getattr(c, 'worst_post_ratio', None))}"]
-    cleaned = getattr(c, "cleaned", None)
-    if cleaned is not None:
-        src = getattr(cleaned, "summary", cleaned)
-        get = (src.get if isinstance(src, dict) else lambda k, d=None: getattr(src, k, d))
+    lines = [f"nearest pre-pulse  {_ratio(c.nearest_pre_ratio)}",
+             f"worst pre-pulse    {_ratio(c.worst_pre_ratio)}",
+             f"worst post-pulse   {_ratio(c.worst_post_ratio)}"]
+    if c.cleaned is not None:
         lines.append("with the cleaner cell:")
-        lines.append(f"  worst pre-pulse  {ratio(get('worst_pre_ratio'))}")
-        lines.append(f"  worst post-pulse {ratio(get('worst_post_ratio'))}")
+        lines.append(f"  worst pre-pulse  {_ratio(c.cleaned.summary.worst_pre_ratio)}")
+        lines.append(f"  worst post-pulse {_ratio(c.cleaned.summary.worst_post_ratio)}")
     return lines
 
 
@@ -178,17 +101,14 @@ def check_lines(plan) -> list[tuple[str, str]]:
     """(level, text) for every check, errors first."""
     order = {"error": 0, "warning": 1, "info": 2}
     checks = sorted(plan.checks, key=lambda c: order.get(c.level, 3))
-    out = [(c.level, f"{LEVEL_MARK.get(c.level, '?')} {c.name}: {c.message}") for c in checks]
-    if plan.switching is None:
-        out.append(("info", f"· windows: {NOT_YET}"))
-    return out
+    return [(c.level, f"{LEVEL_MARK.get(c.level, '?')} {c.name}: {c.message}") for c in checks]
 
 
 def sensitivity_text(plan, n: int) -> str:
     b = plan.buildup
     if n >= len(b.sensitivity_pump):
         return ""
-    sp, ss = _f(b.sensitivity_pump[n]), _f(b.sensitivity_seed[n])
+    sp, ss = finite_or_none(b.sensitivity_pump[n]), finite_or_none(b.sensitivity_seed[n])
     show = lambda x: "—" if x is None else f"{x:+.3f}"  # noqa: E731
     return (f"after round trip {n}: d ln E_out / d ln pump = {show(sp)},  "
             f"d ln E_out / d ln seed = {show(ss)}")
@@ -214,8 +134,8 @@ def trace_overlay(result) -> Optional[TraceOverlay]:
     f = result.fit
     if f is None:
         return None
-    scale = _f(f.values.get("scale_per_J"))
-    before = _f(f.values.get("round_trips_before_first_pulse"))
+    scale = finite_or_none(f.values.get("scale_per_J"))
+    before = finite_or_none(f.values.get("round_trips_before_first_pulse"))
     if scale is None or scale <= 0 or before is None:
         return None
     k0 = int(round(before))
@@ -245,7 +165,7 @@ def trace_lines(result, base: int, chosen: Optional[int]) -> list[tuple[str, str
         out.append(("", f"{os.path.basename(t.source)}, channel '{t.channel}': {t.n_samples} "
                         f"samples every {eng(t.sample_interval, 's', 3)}; "
                         f"{len(tr.amplitudes)} pulses (amplitude: pulse area)"))
-    meas = f"round trip {_f(r.measured_round_trip_s) * 1e9:.4f} ns ± " \
+    meas = f"round trip {finite_or_none(r.measured_round_trip_s) * 1e9:.4f} ns ± " \
            f"{eng(r.measured_round_trip_sigma_s, 's', 3)} measured"
     if r.model_round_trip_s is not None and r.length_error_m is not None:
         side = "longer" if r.length_error_m > 0 else "shorter"
@@ -259,10 +179,10 @@ def trace_lines(result, base: int, chosen: Optional[int]) -> list[tuple[str, str
             v, s, file = f.values.get(key), f.sigmas.get(key), f.file_values.get(key)
             fmt = (lambda x, d=4: f"{x * 100:.{d - 1}g} %") if pct else \
                 (lambda x, d=4: f"{x:.{d}g}")  # noqa: E731
-            text = "—" if _f(v) is None else fmt(v)
-            if _f(s) is not None and s > 0:
+            text = "—" if finite_or_none(v) is None else fmt(v)
+            if finite_or_none(s) is not None and s > 0:
                 text += f" ± {fmt(s, 2 + pct)}"
-            if _f(file) is not None:
+            if finite_or_none(file) is not None:
                 text += f" (file {fmt(file)})"
             return text
 
@@ -304,14 +224,3 @@ def element_summary(kind: str, fields: Any) -> str:
     rest = [f"{k} {v}" for k, v in fields.items() if k != "name"]
     head = f"{kind} {name}" if name else kind
     return (head + "  " + ", ".join(rest)).rstrip()
-
-
-def _setup_card():
-    import importlib
-
-    try:
-        return importlib.import_module("regentime.reports.setup_card")
-    except ModuleNotFoundError as exc:
-        if exc.name == "regentime.reports.setup_card":
-            return None
-        raise

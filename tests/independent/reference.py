@@ -1,12 +1,12 @@
-"""An independent, deliberately plain implementation of DESIGN.md's canonical definitions.
+"""An independent, deliberately plain implementation of the canonical definitions in docs/definitions.md.
 
-Purpose: a second reading of /work/shared/DESIGN.md ("Canonical definitions") and
-/work/shared/REFERENCES.md, written without looking at regentime's physics/ or planning/
+Purpose: a second reading of docs/definitions.md ("Canonical definitions") and
+docs/references.md, written without looking at regentime's physics/ or planning/
 code, to cross-check ``regentime plan --format json`` and ``regentime stability``.
 It shares with the tool only the cavity loader (file -> SI dataclasses of
 ``regentime.model``), the dispersion formulas (``group_index``) and the gain-media table.
 
-Readings of DESIGN.md taken here (where its words leave a choice), written down so that a
+Readings of docs/definitions.md taken here (where its words leave a choice), written down so that a
 disagreement can be traced to one of them:
 
 R1  Round trip: unfold at the polarizer; cell arm out (end mirror reflected once) and back,
@@ -17,7 +17,7 @@ R2  Gain: J_sat = h c/(λ (σ_e + σ_a)); J_tr = J_sat σ_a N_t L (the inversion
     σ_e N2 = σ_a N1, times h ν L); g = (J_st − J_tr)/J_sat; Frantz–Nodvik per crossing in
     log1p/expm1 (logaddexp) form; the stored fluence drops by J_out − J_in.
 R3  Pulsed pump: E_st = E_p η_abs η_ov (λ_p/λ) exp(−lead/τ), held during the build-up
-    (DESIGN defines only its value at injection; no decay over the N round trips).
+    (the definitions give only its value at injection; no decay over the N round trips).
 R4  Continuous pump: recovery by T_rt after every round trip (the N-th included), then
     1/f − N T_rt between shots, so one period is exactly 1/f.  The final cell-arm double
     pass of the output is not followed by a recovery step of its own.
@@ -100,7 +100,7 @@ def element_delay(el, cav) -> float:
 
 
 def round_trip_time(cav) -> float:
-    """T_rt = 2 Σ n_g,i L_i / c (DESIGN 'Round trip')."""
+    """T_rt = 2 Σ n_g,i L_i / c (docs/definitions.md, 'Round trip')."""
     return 2.0 * sum(element_delay(e, cav) for e in cav.elements)
 
 
@@ -566,6 +566,7 @@ def plan(cav, rings=64, carry=False, nmax=None, decay_pulsed=False, reset_profil
     ref = Reference(cav, rings=rings, carry=carry, decay_pulsed=decay_pulsed,
                     reset_profile=reset_profile)
     T = ref.T
+    dump = cav.dump.round_trip if cav.dump.rule == "given" else cav.dump.rule  # N or the rule's name
     res = dict(round_trip_time_s=T, leak=ref.leak, eta=ref.eta)
     h = 1e-3
     if cav.pump.mode == "pulsed":
@@ -580,7 +581,7 @@ def plan(cav, rings=64, carry=False, nmax=None, decay_pulsed=False, reset_profil
         b = ref.buildup(nmax)
         out = b["out"]
         period_ok = np.ones_like(out, dtype=bool)
-        if cav.dump == "steady":
+        if dump == "steady":
             bp = ref.buildup(nmax, pump_scale=1 + h)["out"]
             bm = ref.buildup(nmax, pump_scale=1 - h)["out"]
             sp_ = ref.buildup(nmax, e0=ref.e0 * (1 + h))["out"]
@@ -598,10 +599,10 @@ def plan(cav, rings=64, carry=False, nmax=None, decay_pulsed=False, reset_profil
         nfit = int(1.0 / (cav.repetition_rate * T))
         top = min(nfit, max(3 * k0 + 10, 40)) if nmax is None else nmax
         while True:
-            Ns = np.array([cav.dump]) if isinstance(cav.dump, int) else np.arange(1, top + 1)
+            Ns = np.array([dump]) if isinstance(dump, int) else np.arange(1, top + 1)
             st = ref.steady(Ns)
             outs = st["out"]
-            if (isinstance(cav.dump, int) or nmax is not None or top >= nfit
+            if (isinstance(dump, int) or nmax is not None or top >= nfit
                     or outs[-1] < 0.9 * np.max(outs[st["converged"]])):
                 break
             top = min(nfit, 2 * top)
@@ -609,7 +610,7 @@ def plan(cav, rings=64, carry=False, nmax=None, decay_pulsed=False, reset_profil
         out[Ns] = outs
         period_ok = np.zeros_like(out, dtype=bool)
         period_ok[Ns] = st["converged"]
-        if cav.dump == "steady":
+        if dump == "steady":
             def so(**kw):
                 r = ref.steady(Ns, s_init=st["s_start"], **kw)
                 o = np.full_like(out, np.nan)
@@ -623,12 +624,12 @@ def plan(cav, rings=64, carry=False, nmax=None, decay_pulsed=False, reset_profil
     # dump rule
     valid = np.isfinite(out) & period_ok
     valid[0] = False
-    if isinstance(cav.dump, int):
-        N = cav.dump
+    if isinstance(dump, int):
+        N = dump
     else:
         pk = np.nanmax(np.where(valid, out, np.nan))
         Npk = int(np.nanargmax(np.where(valid, out, -np.inf)))
-        if cav.dump == "auto":
+        if dump == "auto":
             N = Npk
         else:
             cand = valid & (out >= 0.9 * pk)
