@@ -44,7 +44,7 @@ def grid(n_side: int, sample: int) -> None:
 
     from regentime.fileformat import load_cavity
     from regentime.physics.buildup import simulate_buildup
-    from regentime.physics.optics import cavity_optics
+    from regentime.planning.optics import cavity_optics
     from regentime.planning.gainsetup import gain_model, round_trip_path
 
     cav = load_cavity(CAVITY)

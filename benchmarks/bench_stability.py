@@ -54,7 +54,7 @@ def main(argv=None) -> int:
     import _stability_cavity as sc
 
     from regentime.physics import dynamics as dyn
-    from regentime.physics.optics import cavity_optics
+    from regentime.planning.optics import cavity_optics
     from regentime.planning import stability as st
     from regentime.planning import steady
     from regentime.planning.gainsetup import gain_model, round_trip_path

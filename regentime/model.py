@@ -255,7 +255,7 @@ class Cleaner:
 @dataclass(frozen=True)
 class Checks:
     damage_intensity: Optional[float] = None  # W/m^2, user-given damage intensity
-    b_integral_limit: float = 3.0  # rad (common practice: 3-5 rad in a CPA chain)
+    b_integral_limit: float = 1.0  # rad (common practice where contrast matters; 3-5 rad is a CPA chain's total)
 
 
 @dataclass(frozen=True)

@@ -13,7 +13,7 @@ wavelength: 800 nm
 repetition_rate: {rep}
 air: vacuum
 seed: {{energy: 2 nJ, duration: {pulse}, train_rate: 80 MHz, arrival: 7.3 ns}}
-gain: {{material: ti_sapphire, mode_radius: 0.45 mm}}
+gain: {{material: ti_sapphire, mode_radius: 0.75 mm}}
 pump: {pump}
 cavity:
   - mirror: {{name: end-A, reflectivity: 99.8 %}}

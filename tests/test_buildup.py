@@ -21,7 +21,7 @@ from regentime.physics.buildup import (
     shot,
 )
 from regentime.physics.gain import pulsed_stored_energy, radial_grid, relax, saturation_fluence
-from regentime.physics.optics import cavity_optics
+from regentime.planning.optics import cavity_optics
 from regentime.planning.buildup_plan import choose_dump, plan_buildup
 from regentime.planning.gainsetup import gain_model, round_trip_path
 

@@ -25,11 +25,17 @@ def _check(plan, name):
     return found[0]
 
 
-def test_damage_warning_names_the_numbers():
+def test_damage_above_threshold_is_an_error_with_its_numbers():
     cav = load_cavity(TI)
     low = replace(cav, gain=replace(cav.gain, medium=replace(cav.gain.medium, damage_fluence=1e3)))
-    c = _check(make_plan(low), "damage")
-    assert c.level == "warning" and "ABOVE" in c.message and "J/cm²" in c.message
+    plan = make_plan(low)
+    c = _check(plan, "damage")
+    assert c.level == "error" and "ABOVE" in c.message and "J/cm²" in c.message
+    assert plan.cannot_be_met  # exit 3: a safety verdict is never softer than the physics
+    # the limit is the threshold scaled with √τ (Stuart et al., Phys. Rev. B 53, 1749 (1996))
+    tau = cav.seed.duration
+    assert c.limit == pytest.approx(1e3 * (tau / cav.gain.medium.damage_duration) ** 0.5, rel=1e-12)
+    assert c.unit == "J/m^2" and c.value > c.limit and c.element
     high = replace(cav, gain=replace(cav.gain, medium=replace(cav.gain.medium, damage_fluence=1e7)))
     assert _check(make_plan(high), "damage").level == "info"
 

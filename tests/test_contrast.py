@@ -15,10 +15,11 @@ import numpy as np
 import pytest
 from scipy.constants import c as C_LIGHT
 
+from regentime.planning import cell_model
 from regentime.fileformat import load_cavity
 from regentime.model import Cable, Cleaner, GainElement, PockelsCell, Polarizer
 from regentime.physics import contrast as pc
-from regentime.physics.optics import cavity_optics
+from regentime.planning.optics import cavity_optics
 from regentime.planning import contrast as pcon
 from regentime.planning import contrast_target as pcon_target
 from regentime.planning.buildup_plan import plan_buildup
@@ -242,7 +243,7 @@ def test_quarter_wave_seed_after_switch_out_gets_one_round_trip_of_gain(ti):
     s = after[0]
     t_seed = s.time_from_trigger - optics.round_trip_time - optics.cell_arm_time
     g = float(b.gain.log_gain(hist.j_at(t_seed + optics.cell_arm_time)))
-    from regentime.physics.jones import seed_return_shares
+    from regentime.planning.cell_model import seed_return_shares
 
     share = seed_return_shares(ti, optics)[1]
     expected = (ti.seed.energy * share * optics.passive_transmission("cell") ** 2

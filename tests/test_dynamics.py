@@ -10,18 +10,15 @@ issue asks about.
 from __future__ import annotations
 
 import math
-import sys
 from dataclasses import replace
-from pathlib import Path
 
 import numpy as np
 import pytest
 
-sys.path.insert(0, str(Path(__file__).parent))
 import _stability_cavity as sc  # noqa: E402
 
 from regentime.physics import dynamics as dyn  # noqa: E402
-from regentime.physics.optics import cavity_optics  # noqa: E402
+from regentime.planning.optics import cavity_optics  # noqa: E402
 from regentime.planning import steady  # noqa: E402
 from regentime.planning.gainsetup import gain_model, round_trip_path  # noqa: E402
 

@@ -21,7 +21,7 @@ from hypothesis import strategies as st
 from regentime import fileformat
 from regentime.physics.buildup import shot, simulate_buildup
 from regentime.physics.gain import radial_grid
-from regentime.physics.optics import cavity_optics
+from regentime.planning.optics import cavity_optics
 from regentime.planning.gainsetup import gain_model, round_trip_path
 
 CAVITIES = Path(__file__).resolve().parent.parent / "cavities"

@@ -108,7 +108,7 @@ def test_defaults_applied():
     assert dict(c.cables) == {}
     assert c.dump.rule == "auto" and c.air == "air"
     assert c.gain.profile == "flat-top" and c.gain.rings == 64 and c.gain.pump_radius is None
-    assert c.checks.b_integral_limit == 3.0 and c.checks.damage_intensity is None
+    assert c.checks.b_integral_limit == 1.0 and c.checks.damage_intensity is None
     assert c.cleaner is None and c.scope.lead is None and c.generator.resolution is None
     e = c.elements
     assert [x.name for x in e] == ["mirror 1", "space 1", "pockels cell 1", "waveplate 1",
@@ -189,7 +189,7 @@ def test_missing_file_and_folder(tmp_path):
 
 
 def test_unreadable_file(tmp_path, monkeypatch):
-    import regentime.fileformat.loader as loader
+    import regentime.fileformat.reading as loader  # where the file is opened
 
     path = tmp_path / "secret.yaml"
     path.write_text(MINIMAL)

@@ -65,7 +65,9 @@ def _param(check):
 def _run(args):
     proc = subprocess.run([sys.executable, "-m", "regentime", *args], cwd=ROOT,
                           capture_output=True, text=True, timeout=120)
-    assert proc.returncode == 0, proc.stderr
+    # 3 is a verdict (e.g. damage above threshold in a deliberately hard test cavity): the
+    # numbers are printed all the same, and the numbers are what this cross-check compares
+    assert proc.returncode in (0, 3), proc.stderr
     return json.loads(proc.stdout)
 
 

@@ -3,19 +3,17 @@
 from __future__ import annotations
 
 import math
-import sys
 from dataclasses import replace
-from pathlib import Path
 
 import numpy as np
 import pytest
 
-sys.path.insert(0, str(Path(__file__).parent))
 import _switch_cavity as tc  # noqa: E402
 
+from regentime.planning import cell_model
 from regentime.materials.electrooptic import half_wave_voltage, quarter_wave_voltage  # noqa: E402
 from regentime.physics import jones  # noqa: E402
-from regentime.physics.optics import cavity_optics  # noqa: E402
+from regentime.planning.optics import cavity_optics  # noqa: E402
 
 
 def test_crossed_polarizers_follow_sin_squared_law():
@@ -84,17 +82,17 @@ def test_full_retardance_from_voltage_and_crystal_when_no_wave_voltage_given():
     cell = cav.elements_of(__import__("regentime.model", fromlist=["PockelsCell"]).PockelsCell)[0]
     cell = replace(cell, length=20e-3)
     cav = replace(cav, wavelength=1030e-9)
-    assert jones.full_retardance(cav, cell) == pytest.approx(math.pi / 2, rel=0.15)
+    assert cell_model.full_retardance(cav, cell) == pytest.approx(math.pi / 2, rel=0.15)
     # and with a quarter-wave voltage in the file, Γ scales linearly with the applied voltage
     cav2 = tc.load(voltage="quarter_wave_voltage: 3.4 kV, voltage: 3.57 kV, ")
-    assert jones.full_retardance(cav2) == pytest.approx(math.pi / 2 * 3.57 / 3.4, rel=1e-12)
+    assert cell_model.full_retardance(cav2) == pytest.approx(math.pi / 2 * 3.57 / 3.4, rel=1e-12)
 
 
 def test_leak_per_return_ideal_cell_is_reflection_over_extinction():
     # docs/definitions.md "Contrast": a purely P-polarised pulse leaks reflection_s/extinction_ratio.
     cav = tc.load(contrast=1e9, er=500)
     optics = cavity_optics(cav)
-    assert jones.leak_per_return(cav, optics) == pytest.approx(0.995 / 500, rel=1e-5)
+    assert cell_model.leak_per_return(cav, optics) == pytest.approx(0.995 / 500, rel=1e-5)
 
 
 def test_leak_per_return_adds_the_cell_contrast():
@@ -102,7 +100,7 @@ def test_leak_per_return_adds_the_cell_contrast():
     # return ≈ 2/C, reflected with R_s; with a near-ideal polarizer (ER = 1e9).
     cav = tc.load(contrast=1000, er=1e9)
     optics = cavity_optics(cav)
-    assert jones.leak_per_return(cav, optics) == pytest.approx(0.995 * 2 / 1000, rel=2e-3)
+    assert cell_model.leak_per_return(cav, optics) == pytest.approx(0.995 * 2 / 1000, rel=2e-3)
 
 
 def test_seed_return_shares_with_ideal_optics():
@@ -110,10 +108,10 @@ def test_seed_return_shares_with_ideal_optics():
     # trip with R_s (in) · T_p² · R_s (out); the half-wave one reflects it straight back, R_s².
     # (Polarizer factors from the file: T_p = 98 %, R_s = 99.5 %; docs/definitions.md "Contrast".)
     qw = tc.load(contrast=1e9, er=1e9)
-    assert jones.seed_return_share(qw, cavity_optics(qw)) == pytest.approx(0.995 ** 2 * 0.98 ** 2, rel=1e-6)
+    assert cell_model.seed_return_share(qw, cavity_optics(qw)) == pytest.approx(0.995 ** 2 * 0.98 ** 2, rel=1e-6)
     hw = tc.load(scheme="half-wave", contrast=1e9, er=1e9)
-    assert jones.seed_return_share(hw, cavity_optics(hw)) == pytest.approx(0.995 ** 2, rel=1e-6)
-    straight, _ = jones.seed_return_shares(qw, cavity_optics(qw))
+    assert cell_model.seed_return_share(hw, cavity_optics(hw)) == pytest.approx(0.995 ** 2, rel=1e-6)
+    straight, _ = cell_model.seed_return_shares(qw, cavity_optics(qw))
     assert straight == pytest.approx(0.0, abs=1e-8)
 
 
@@ -125,6 +123,6 @@ def test_trapped_pass_leak_versus_voltage_error():
         cav = tc.load(scheme=scheme, contrast=1e9)
         optics = cavity_optics(cav)
         for eps in (0.01, 0.05, 0.1):
-            g = jones.full_retardance(cav) * (1 + eps)
+            g = cell_model.full_retardance(cav) * (1 + eps)
             out = jones.cell_arm_mueller(optics.cell_arm, g, g, math.inf) @ jones.STOKES_P
             assert float(jones.s_share(out)) == pytest.approx(math.sin(k * math.pi * eps) ** 2, rel=1e-9)

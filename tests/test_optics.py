@@ -4,7 +4,7 @@ import pytest
 from scipy.constants import c  # CODATA/SI value of the speed of light (general-purpose library)
 
 from regentime.fileformat import load_cavity_text
-from regentime.physics.optics import cavity_optics
+from regentime.planning.optics import cavity_optics
 
 HEADER = """
 format: regentime/1

@@ -6,12 +6,9 @@ import csv
 import datetime as dt
 import io
 import json
-import sys
-from pathlib import Path
 
 import pytest
 
-sys.path.insert(0, str(Path(__file__).parent))
 import _switch_cavity as tc  # noqa: E402
 
 from regentime.cli import main  # noqa: E402

@@ -11,16 +11,13 @@ The cavities are invented test scenarios (tests/_stability_cavity.py).
 from __future__ import annotations
 
 import json
-import sys
-from pathlib import Path
 
 import numpy as np
 import pytest
 
-sys.path.insert(0, str(Path(__file__).parent))
 import _stability_cavity as sc  # noqa: E402
 
-from regentime.physics.optics import cavity_optics  # noqa: E402
+from regentime.planning.optics import cavity_optics  # noqa: E402
 from regentime.planning import stability as st  # noqa: E402
 from regentime.planning import steady  # noqa: E402
 from regentime.planning.buildup_plan import plan_buildup  # noqa: E402

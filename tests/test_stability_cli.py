@@ -3,12 +3,9 @@
 from __future__ import annotations
 
 import json
-import sys
-from pathlib import Path
 
 import pytest
 
-sys.path.insert(0, str(Path(__file__).parent))
 import _stability_cavity as sc  # noqa: E402
 
 from regentime.cli import main  # noqa: E402

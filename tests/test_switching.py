@@ -3,19 +3,16 @@
 from __future__ import annotations
 
 import math
-import sys
-from pathlib import Path
 
 import numpy as np
 import pytest
 from scipy.special import erfinv  # general-purpose reference library
 
-sys.path.insert(0, str(Path(__file__).parent))
 import _switch_cavity as tc  # noqa: E402
 
 from regentime.errors import InputError  # noqa: E402
 from regentime.physics import switching as sw  # noqa: E402
-from regentime.physics.optics import cavity_optics  # noqa: E402
+from regentime.planning.optics import cavity_optics  # noqa: E402
 from regentime.planning.buildup_plan import plan_buildup  # noqa: E402
 from regentime.planning.switching import plan_switching  # noqa: E402
 

@@ -3,13 +3,10 @@
 from __future__ import annotations
 
 import math
-import sys
-from pathlib import Path
 
 import pytest
 from scipy.constants import c as C  # general-purpose reference library
 
-sys.path.insert(0, str(Path(__file__).parent))
 import _switch_cavity as tc  # noqa: E402
 
 from regentime.model import Cable  # noqa: E402

@@ -26,7 +26,7 @@ KEYS = ("measured_round_trip_s", "model_round_trip_s", "length_error_m", "pulses
 def scope_file(tmp_path_factory):
     from regentime.fileformat import load_cavity
     from regentime.model import Space
-    from regentime.physics.optics import cavity_optics
+    from regentime.planning.optics import cavity_optics
     from regentime.planning.buildup_plan import plan_buildup
     from regentime.trace.synthetic import synthetic_trace
 

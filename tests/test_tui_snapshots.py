@@ -121,7 +121,7 @@ async def test_trace_overlay_160x48(tmp_path) -> None:
 
     from regentime.fileformat import load_cavity
     from regentime.model import Space
-    from regentime.physics.optics import cavity_optics
+    from regentime.planning.optics import cavity_optics
     from regentime.planning.buildup_plan import plan_buildup
     from regentime.trace.synthetic import synthetic_trace
 

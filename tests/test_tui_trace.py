@@ -35,7 +35,7 @@ AFTER_PEAK = 2  # the invented trace is switched out this many round trips after
 def scope(tmp_path_factory):
     """(cavity copy, trace file, real round trip, file round trip, real peak round trip)."""
     from regentime.model import Space
-    from regentime.physics.optics import cavity_optics
+    from regentime.planning.optics import cavity_optics
     from regentime.planning.buildup_plan import plan_buildup
     from regentime.trace.synthetic import synthetic_trace
 

@@ -143,7 +143,7 @@ def run(args) -> int:
     from regentime.commands.loading import load, parse_dump
     from regentime.planning import stability as st
     from regentime.planning.buildup_plan import plan_buildup
-    from regentime.physics.optics import cavity_optics
+    from regentime.planning.optics import cavity_optics
     from regentime.reports import stability_report as rep
 
     cavity = load(args.file)

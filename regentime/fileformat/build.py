@@ -14,19 +14,19 @@ from typing import Any, Optional
 
 from regentime import model as m
 from regentime.errors import MISSING, InputError, InputErrors
-from regentime.fileformat.loader import (
-    DEFAULT_CELL_CONTRAST, DEFAULT_VELOCITY_FACTOR, FORMAT_VERSION, Checker, _BAD, _Shown,
-    _gain_media, _key_line, _line, _suggest)
+from regentime.fileformat.reading import (
+    DEFAULT_CELL_CONTRAST, DEFAULT_VELOCITY_FACTOR, FORMAT_VERSION, Checker, BAD, Shown,
+    gain_media_table, key_line, line_of, suggest)
 from regentime.fileformat.schema import DRIVES, ELEMENT_KINDS, ELEMENTS, TOP
 
 def validate(data: Any, source: Optional[str], default_name: str) -> m.Cavity:
     """Round-trip data of one file -> Cavity; raises InputErrors listing every problem."""
     where = source
     if data is None:
-        raise InputError("", _Shown("an empty file"), "a cavity description starting with "
+        raise InputError("", Shown("an empty file"), "a cavity description starting with "
                          f"'format: {FORMAT_VERSION}'", line=1, source=where)
     if not isinstance(data, dict):
-        raise InputError("", data if not isinstance(data, list) else _Shown("a list"),
+        raise InputError("", data if not isinstance(data, list) else Shown("a list"),
                          "a mapping of keys (format, seed, gain, pump, cavity, switch …)",
                          line=1, source=where)
     ck = Checker(source)
@@ -36,10 +36,10 @@ def validate(data: Any, source: Optional[str], default_name: str) -> m.Cavity:
     elif data["format"] != FORMAT_VERSION:
         raise InputErrors([InputError(
             "format", data["format"], f"'{FORMAT_VERSION}' (this version of regentime reads "
-            f"format {FORMAT_VERSION} only)", line=_line(data, "format"), source=where)])
+            f"format {FORMAT_VERSION} only)", line=line_of(data, "format"), source=where)])
     top = ck.section(data, TOP, "", 1)
     elements = _elements(ck, data)
-    if top is _BAD:  # pragma: no cover - data is a mapping here
+    if top is BAD:  # pragma: no cover - data is a mapping here
         raise InputErrors(ck.errors)
     _rules(ck, data, top, elements)
     if ck.errors:
@@ -54,27 +54,27 @@ def _elements(ck: Checker, data) -> list[tuple[int, str, dict, Optional[int]]]:
     if raw is MISSING:
         ck.err("cavity", MISSING, "a list of elements from one end mirror to the other", 1)
         return []
-    line = _line(data, "cavity")
+    line = line_of(data, "cavity")
     if not isinstance(raw, list) or not raw:
-        ck.err("cavity", raw if raw is not None else _Shown("nothing"),
+        ck.err("cavity", raw if raw is not None else Shown("nothing"),
                "a list of elements, e.g. '- mirror: {reflectivity: 99.8 %}'", line)
         return []
     out = []
     for i, item in enumerate(raw):
         path = f"cavity[{i}]"
-        iline = _line(raw, i)
+        iline = line_of(raw, i)
         if not isinstance(item, dict) or len(item) != 1:
             ck.err(path, item, "one element: a one-key mapping such as "
                    "'- space: 250 mm' or '- mirror: {reflectivity: 99.8 %}'", iline)
             continue
         kind = next(iter(item))
         if kind not in ELEMENTS:
-            ck.err(path, _Shown(f"unknown element '{kind}'"),
-                   f"one of {', '.join(ELEMENT_KINDS)}{_suggest(kind, ELEMENT_KINDS)}", iline)
+            ck.err(path, Shown(f"unknown element '{kind}'"),
+                   f"one of {', '.join(ELEMENT_KINDS)}{suggest(kind, ELEMENT_KINDS)}", iline)
             continue
         body = item[kind]
         parsed = ck.section(body, ELEMENTS[kind], f"{path}.{kind}", iline)
-        if parsed is not _BAD:
+        if parsed is not BAD:
             out.append((i, kind, parsed, iline))
     return out
 
@@ -86,19 +86,19 @@ def _rules(ck: Checker, data, top: dict, elements: list) -> None:
     n = len(raw) if isinstance(raw, list) else 0
     kinds = {i: k for i, k, _, _ in elements}
     if n and len(kinds) == n:  # every item readable: structural rules make sense
-        line = _key_line(data, "cavity")
+        line = key_line(data, "cavity")
         for end in (0, n - 1):
             if kinds[end] != "mirror":
-                ck.err(f"cavity[{end}]", _Shown(f"a {kinds[end]}"),
+                ck.err(f"cavity[{end}]", Shown(f"a {kinds[end]}"),
                        "an end mirror: the cavity list starts and ends with '- mirror'",
-                       _line(raw, end))
+                       line_of(raw, end))
         for kind in ("polarizer", "pockels_cell", "gain_medium"):
             where = [i for i, k in kinds.items() if k == kind]
             if len(where) != 1:
-                got = _Shown(f"{len(where)} {kind} elements" + (
+                got = Shown(f"{len(where)} {kind} elements" + (
                     f" (cavity[{where[0]}], cavity[{where[1]}] …)" if len(where) > 1 else ""))
                 ck.err(f"cavity[{where[1]}]" if len(where) > 1 else "cavity", got,
-                       f"exactly one {kind}", _line(raw, where[1]) if len(where) > 1 else line)
+                       f"exactly one {kind}", line_of(raw, where[1]) if len(where) > 1 else line)
         names: dict[str, int] = {}
         for i, kind, fields, iline in elements:
             name = fields.get("name")
@@ -110,7 +110,7 @@ def _rules(ck: Checker, data, top: dict, elements: list) -> None:
     for i, kind, fields, iline in elements:
         if kind == "pockels_cell" and "quarter_wave_voltage" in fields and \
                 "half_wave_voltage" in fields:
-            ck.err(f"cavity[{i}].pockels_cell.half_wave_voltage", _Shown("both voltages"),
+            ck.err(f"cavity[{i}].pockels_cell.half_wave_voltage", Shown("both voltages"),
                    "at most one of quarter_wave_voltage and half_wave_voltage", iline)
     pump = top.get("pump")
     praw = data.get("pump")
@@ -121,13 +121,13 @@ def _rules(ck: Checker, data, top: dict, elements: list) -> None:
         for key in need:
             if key not in praw:
                 ck.err(f"pump.{key}", MISSING, f"{check_spec('pump', key).expected()} "
-                       f"(pump.mode: {pump['mode']} needs it)", _line(data, "pump"))
+                       f"(pump.mode: {pump['mode']} needs it)", line_of(data, "pump"))
         for key in refuse:
             if key in praw:
                 other = "continuous" if pulsed else "pulsed"
                 ck.err(f"pump.{key}", praw[key], f"no '{key}' with pump.mode: {pump['mode']} "
                        f"(it belongs to mode: {other}; remove it or change the mode)",
-                       _line(praw, key))
+                       line_of(praw, key))
     _check_wavelengths(ck, data, top)
     _check_drives(ck, data, top)
 
@@ -140,7 +140,7 @@ def _laser_wavelength(top: dict) -> Optional[float]:
     if "wavelength" in top:
         return top["wavelength"]
     gain = top.get("gain") or {}
-    media = _gain_media()
+    media = gain_media_table()
     if media is not None and gain.get("material") in media:
         return media[gain["material"]].wavelength
     return None
@@ -152,12 +152,12 @@ def _check_wavelengths(ck: Checker, data, top: dict) -> None:
     if lam is not None and "wavelength" in pump and pump["wavelength"] >= lam:
         ck.err("pump.wavelength", data["pump"]["wavelength"],
                f"a pump wavelength shorter than the laser wavelength ({lam * 1e9:g} nm)",
-               _line(data["pump"], "wavelength"))
+               line_of(data["pump"], "wavelength"))
     seed = top.get("seed") or {}
     if lam is not None and "bandwidth" in seed and seed["bandwidth"] >= 0.5 * lam:
         ck.err("seed.bandwidth", data["seed"]["bandwidth"],
                f"a bandwidth well below the wavelength ({lam * 1e9:g} nm)",
-               _line(data["seed"], "bandwidth"))
+               line_of(data["seed"], "bandwidth"))
 
 
 def _drives(top: dict) -> list[str]:
@@ -187,27 +187,27 @@ def _check_drives(ck: Checker, data, top: dict) -> None:
                        "pump": "pump.mode is continuous (nothing to trigger)",
                        "cleaner": "there is no cleaner: section"}[key]
                 ck.err(f"{section}.{key}", given[key], f"no '{key}' here: {why}",
-                       _line(given, key))
+                       line_of(given, key))
     outputs = top.get("outputs") or {}
     seen: dict[str, str] = {}
     for drive, name in outputs.items():
         if name in seen:
             ck.err(f"outputs.{drive}", name, f"a name not used for another drive "
-                   f"(outputs.{seen[name]} has it)", _line(data["outputs"], drive))
+                   f"(outputs.{seen[name]} has it)", line_of(data["outputs"], drive))
         seen[name] = drive
     cleaner = top.get("cleaner") or {}
     if "cable" in cleaner and "cleaner" in (top.get("cables") or {}):
-        ck.err("cleaner.cable", _Shown("a second cable for the cleaner"),
+        ck.err("cleaner.cable", Shown("a second cable for the cleaner"),
                "the cleaner's cable in one place: cables.cleaner or cleaner.cable",
-               _line(data["cleaner"], "cable"))
+               line_of(data["cleaner"], "cable"))
     if "output" in cleaner and "cleaner" in outputs and cleaner["output"] != outputs["cleaner"]:
         ck.err("cleaner.output", cleaner["output"],
                f"the same name as outputs.cleaner ('{outputs['cleaner']}'), or only one of them",
-               _line(data["cleaner"], "output"))
+               line_of(data["cleaner"], "output"))
     elif "output" in cleaner and cleaner["output"] in seen and seen[cleaner["output"]] != \
             "cleaner":
         ck.err("cleaner.output", cleaner["output"], f"a name not used for another drive "
-               f"(outputs.{seen[cleaner['output']]} has it)", _line(data["cleaner"], "output"))
+               f"(outputs.{seen[cleaner['output']]} has it)", line_of(data["cleaner"], "output"))
 
 
 # ---- building the model -------------------------------------------------------------------
@@ -271,7 +271,7 @@ _OVERRIDES = ("emission_cross_section", "absorption_cross_section", "upper_state
 
 
 def _medium(ck: Checker, gain: dict) -> m.GainMedium:
-    media = _gain_media()
+    media = gain_media_table()
     base = media[gain["material"]]
     changes = {k: gain[k] for k in _OVERRIDES if k in gain}
     if not changes:

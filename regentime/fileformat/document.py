@@ -18,8 +18,9 @@ import re
 from typing import Any, Optional
 
 from regentime.errors import InputError
-from regentime.fileformat.loader import (
-    _depth_check, _yaml, check_value, decode, load_cavity_text, read_bytes, read_yaml)
+from regentime.fileformat.loader import load_cavity_text
+from regentime.fileformat.reading import (
+    depth_check, yaml_parser, check_value, decode, read_bytes, read_yaml)
 from regentime.fileformat.schema import ELEMENTS, FieldSpec, field_spec
 from regentime.units import DIMENSIONS, format_quantity
 
@@ -294,7 +295,7 @@ class CavityDocument:
                 return repr(float(value)), float(value)
         text = str(value).strip()
         try:
-            loaded = _yaml().load(f"k: {text}\n")
+            loaded = yaml_parser().load(f"k: {text}\n")
         except Exception:  # noqa: BLE001 - not a plain scalar: it gets quoted below
             loaded = None
         if isinstance(loaded, dict) and isinstance(loaded.get("k"), (int, float)) and \
@@ -309,14 +310,14 @@ class CavityDocument:
         reported by the loader's own :func:`read_yaml`, so messages match ``regentime plan``.
         """
         try:
-            yaml = _yaml()
+            yaml = yaml_parser()
             root = yaml.compose(text)
             data = None if root is None else yaml.constructor.construct_document(root)
         except Exception:  # noqa: BLE001 - let the loader name the problem
             data = read_yaml(text, self.source)  # raises with the line and the reason
-            root = _yaml().compose(text)
+            root = yaml_parser().compose(text)
         else:
-            _depth_check(data, self.source)
+            depth_check(data, self.source)
         self._text, self._data, self._root = text, data, root
 
     def _edit(self, fn) -> None:
@@ -443,13 +444,13 @@ def cavity_of(text: str, data: Any, source: Optional[str] = None):
     from dataclasses import replace
 
     from regentime.fileformat.build import validate
-    from regentime.fileformat.loader import MAX_BYTES, _content_hash, _stem
+    from regentime.fileformat.reading import MAX_BYTES, content_hash, stem
 
     raw = text.encode("utf-8")
     if len(raw) > MAX_BYTES or "\x00" in text:
         return load_cavity_text(text, source)  # raises the loader's message
-    cavity = validate(data, source, _stem(source))
-    return replace(cavity, source=source, content_hash=_content_hash(raw))
+    cavity = validate(data, source, stem(source))
+    return replace(cavity, source=source, content_hash=content_hash(raw))
 
 
 def _join(parts: list) -> str:
@@ -486,7 +487,7 @@ def _yaml_scalar(text: str) -> str:
     """``text`` as a YAML scalar that reads back as the same string in block and flow
     context: plain when that is safe, else double-quoted."""
     if text and text == text.strip() and "\n" not in text:
-        yaml = _yaml()
+        yaml = yaml_parser()
         try:
             ok = yaml.load(f"k: {text}\n") == {"k": text} and \
                 yaml.load(f"{{k: {text}}}\n") == {"k": text}

@@ -351,7 +351,7 @@ TOP = Section("", "top level", _fields(
     "checks": Section("checks", "limits for the damage and B-integral checks", _fields(
         _f("damage_intensity", "intensity", "damage peak intensity you trust",
            default="none (fluence check only)", lo=1e10, hi=1e19),
-        _f("b_integral_limit", "number", "B-integral limit in rad", default="3 (common practice)",
+        _f("b_integral_limit", "number", "B-integral limit in rad", default="1 (common practice where contrast matters)",
            lo=0.0, hi=100.0, lo_open=True),
     )),
 })

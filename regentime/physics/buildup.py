@@ -108,7 +108,7 @@ class RoundTripPath:
 
 def path_from_passes(passes, reflection_s: float, round_trip_time: float,
                      switching_efficiency: float = 1.0) -> RoundTripPath:
-    """Build a :class:`RoundTripPath` from :class:`regentime.physics.optics.Pass` objects."""
+    """Build a :class:`RoundTripPath` from :class:`regentime.planning.optics.Pass` objects."""
 
     def reduce(seq):
         ops: list = []

@@ -148,7 +148,7 @@ def event_share(ev: SwitchEvent, t50, rise: float, shape: str, fwhm: float,
     if ev.measure == "trapped":
         share = jones.p_share(stokes @ port.T)
     else:
-        share = jones._reflected_intensity(ev.polarizer, stokes)
+        share = jones.reflected_intensity(ev.polarizer, stokes)
     return share @ w
 
 

@@ -19,7 +19,7 @@ import numpy as np
 
 from regentime.model import Cavity
 from regentime.physics.buildup import BuildupResult, GainModel, RoundTripPath, simulate_buildup
-from regentime.physics.optics import CavityOptics
+from regentime.planning.optics import CavityOptics
 from regentime.planning import steady
 from regentime.planning.gainsetup import gain_model, round_trip_path
 

@@ -4,7 +4,7 @@ Satellites at the output (in/out) port, relative to the main pulse (definitions:
 
 - **Leakage pre-pulses** at −k·T_rt, k = 1 … N: every time the trapped pulse comes back from
   the cell arm to the polarizer a share ℓ leaves by the reflected port
-  (:func:`regentime.physics.jones.leak_per_return`).  Pre-pulse k is ℓ·E_{N−k}·T_cell-arm,
+  (:func:`regentime.planning.cell_model.leak_per_return`).  Pre-pulse k is ℓ·E_{N−k}·T_cell-arm,
   E_k the build-up energy after k round trips and T_cell-arm the cell-arm double pass (with
   the gain at that time when the crystal is in the cell arm).
 - **Post-pulses** at +j·T_rt: the share of the switched-out pulse that the imperfect switch
@@ -36,8 +36,10 @@ import numpy as np
 
 from regentime.model import Cavity, Polarizer
 from regentime.physics import contrast as pc
+from regentime.physics import jones
 from regentime.physics.buildup import path_from_passes
-from regentime.physics.optics import CavityOptics
+from regentime.planning.optics import CavityOptics
+from regentime.planning import cell_model
 from regentime.planning.checks import Check
 from regentime.planning.cleaner import CleanerPlan, plan_cleaner
 from regentime.planning.satellites import Satellite, Summary, summarize
@@ -134,12 +136,10 @@ class Shares:
 
 
 def polarisation_shares(cavity: Cavity, optics: CavityOptics) -> Shares:
-    from regentime.physics import jones
-
     pol = optics.polarizer
-    leak = float(jones.leak_per_return(cavity, optics))
-    straight_off, round_off = jones.seed_return_shares(cavity, optics)
-    g = jones.full_retardance(cavity, optics.cell)
+    leak = float(cell_model.leak_per_return(cavity, optics))
+    straight_off, round_off = cell_model.seed_return_shares(cavity, optics)
+    g = cell_model.full_retardance(cavity, optics.cell)
     m_on = jones.cell_arm_mueller(optics.cell_arm, g, g, optics.cell.contrast)
     m_off = jones.cell_arm_mueller(optics.cell_arm, 0.0, 0.0, optics.cell.contrast)
     back = m_off @ jones.STOKES_P

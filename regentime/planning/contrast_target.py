@@ -11,7 +11,8 @@ from regentime.errors import InputError
 from regentime.model import Cavity, PockelsCell, Polarizer
 from regentime.numfmt import json_float
 from regentime.physics import jones
-from regentime.physics.optics import CavityOptics
+from regentime.planning import cell_model
+from regentime.planning.optics import CavityOptics
 from regentime.planning.contrast import ContrastResult
 
 
@@ -66,7 +67,7 @@ def leak_with(cavity: Cavity, optics: CavityOptics, extinction=None, contrast=No
     pol = replace(optics.polarizer, extinction_ratio=extinction) if extinction is not None else optics.polarizer
     cell = replace(optics.cell, contrast=contrast) if contrast is not None else optics.cell
     arm = tuple(cell if a is optics.cell else (pol if a is optics.polarizer else a) for a in optics.cell_arm)
-    return float(jones.leak_per_return(cav, replace(optics, polarizer=pol, cell=cell, cell_arm=arm)))
+    return float(cell_model.leak_per_return(cav, replace(optics, polarizer=pol, cell=cell, cell_arm=arm)))
 
 
 def required_for_target(cavity: Cavity, optics: CavityOptics, result: ContrastResult, target: float,

@@ -11,7 +11,7 @@ from regentime.physics.gain import (
     saturation_fluence,
     transparency_fluence,
 )
-from regentime.physics.optics import CavityOptics
+from regentime.planning.optics import CavityOptics
 
 
 def crystal(cavity: Cavity) -> GainElement:

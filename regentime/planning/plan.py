@@ -10,7 +10,7 @@ from dataclasses import dataclass, replace
 from typing import Optional, Union
 
 from regentime.model import Cavity, DumpRule
-from regentime.physics.optics import CavityOptics, cavity_optics
+from regentime.planning.optics import CavityOptics, cavity_optics
 from regentime.planning.buildup_plan import BuildupPlan, plan_buildup
 from regentime.planning.checks import Check, run_checks
 from regentime.planning.contrast import ContrastResult, plan_contrast

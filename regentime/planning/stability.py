@@ -50,7 +50,7 @@ _AXES = ("rate", "seed", "pump")
 
 def _setup(cavity: Cavity, optics=None):
     if optics is None:
-        from regentime.physics.optics import cavity_optics
+        from regentime.planning.optics import cavity_optics
 
         optics = cavity_optics(cavity)
     return gain_model(cavity), round_trip_path(cavity, optics), optics

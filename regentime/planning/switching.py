@@ -5,7 +5,7 @@
 
 * round trip k of the chosen seed pulse m starts at t_m + (k−1)·T_rt, t_m = arrival +
   m/train_rate (from the generator's trigger input); the pulse centre crosses the cell at
-  t_out and t_back after the start of each round trip (:mod:`regentime.physics.optics`);
+  t_out and t_back after the start of each round trip (:mod:`regentime.planning.optics`);
 * switch-on: the seed (S) makes the cell-arm passes of round trips 1 and 2; the quarter-wave
   edge falls between the return crossing of round trip 1 and the outward crossing of round
   trip 2, the half-wave edge between the two crossings of round trip 1; measured: the
@@ -31,8 +31,9 @@ from regentime.errors import InputError
 from regentime.model import Cavity, Space
 from regentime.numfmt import json_float
 from regentime.physics import jones
+from regentime.planning import cell_model
 from regentime.physics import switching as sw
-from regentime.physics.optics import C_LIGHT, CavityOptics
+from regentime.planning.optics import C_LIGHT, CavityOptics
 from regentime.planning.checks import Check
 
 VOLTAGE_ERRORS = (-0.10, -0.05, -0.02, -0.01, 0.0, 0.01, 0.02, 0.05, 0.10)
@@ -203,7 +204,7 @@ def plan_switching(cavity: Cavity, optics: CavityOptics, buildup) -> SwitchPlan:
     scheme = s.scheme
     n = int(buildup.dump_round_trip)
     t_rt = optics.round_trip_time
-    gamma = jones.full_retardance(cavity, optics.cell)
+    gamma = cell_model.full_retardance(cavity, optics.cell)
     checks = check_scheme(cavity, optics, gamma)
     fwhm = cavity.seed.duration
     on_ev, off_ev = switch_events(cavity, optics, n, gamma)
@@ -242,7 +243,7 @@ def plan_switching(cavity: Cavity, optics: CavityOptics, buildup) -> SwitchPlan:
     assumptions = [
         f"{scheme} scheme; retardance per crossing with the high voltage on {math.degrees(gamma):.1f}° "
         + ("(the scheme's nominal voltage)" if optics.cell.voltage is None else
-           f"({optics.cell.voltage:.0f} V against V_π = {jones.half_wave_voltage_of(cavity, optics.cell):.0f} V)"),
+           f"({optics.cell.voltage:.0f} V against V_π = {cell_model.half_wave_voltage_of(cavity, optics.cell):.0f} V)"),
         f"cell axes at 45° to the polarizer; static contrast {optics.cell.contrast:g} as depolarisation",
         f"high-voltage edge: {s.edge}, 10–90 % rise {s.rise_time * 1e9:.3g} ns, fall {s.fall_time * 1e9:.3g} ns; "
         f"Gaussian stretched pulse, FWHM {fwhm * 1e12:.4g} ps",
@@ -257,7 +258,7 @@ def plan_switching(cavity: Cavity, optics: CavityOptics, buildup) -> SwitchPlan:
         full_retardance=gamma, dump_round_trip=n, round_trip_time=t_rt,
         rise_time=s.rise_time, fall_time=s.fall_time, edge_shape=s.edge, jitter=s.jitter,
         on_gap=shift(on_ev.gap), off_gap=shift(off_ev.gap), on_result=on_res, off_result=off_res,
-        leak_per_return=jones.leak_per_return(cavity, optics), assumptions=assumptions, checks=checks)
+        leak_per_return=cell_model.leak_per_return(cavity, optics), assumptions=assumptions, checks=checks)
 
 
 def voltage_tolerance(cavity, optics, on_ev, off_ev, on_rel, off_rel, n, gamma) -> list[VoltageRow]:

@@ -23,7 +23,7 @@ from typing import Optional
 
 from regentime.model import Cavity
 from regentime.numfmt import eng, ns
-from regentime.physics.optics import CavityOptics
+from regentime.planning.optics import CavityOptics
 from regentime.planning.checks import Check
 
 _EPS = 1e-15  # s: delays above −1 fs count as ≥ 0 (floating-point noise of the sums)

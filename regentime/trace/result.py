@@ -143,7 +143,7 @@ def inputs_from_cavity(cavity) -> BuildupInputs:
     """
     from types import SimpleNamespace
 
-    from regentime.physics.optics import cavity_optics
+    from regentime.planning.optics import cavity_optics
     from regentime.planning.buildup_plan import plan_buildup
 
     optics = cavity_optics(cavity)
