@@ -419,6 +419,10 @@ def check_value(raw: Any, spec: FieldSpec, path: str) -> Any:
             raise InputError(path, raw, f"'{FORMAT_VERSION}' (this version of regentime reads "
                              f"format {FORMAT_VERSION} only)")
         raise InputError(path, raw, f"one of {', '.join(spec.choices)}{hint}")
+    if dim == "flag":
+        if isinstance(raw, bool):
+            return raw
+        raise InputError(path, raw, "true or false")
     if dim == "text":
         if isinstance(raw, bool) or not isinstance(raw, (str, int, float)):
             raise InputError(path, raw, "a line of text")

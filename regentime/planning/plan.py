@@ -13,6 +13,7 @@ from regentime.model import Cavity
 from regentime.physics.optics import CavityOptics, cavity_optics
 from regentime.planning.buildup_plan import BuildupPlan, plan_buildup
 from regentime.planning.checks import Check, run_checks
+from regentime.planning.mode_plan import CavityModeResult, plan_mode
 
 CAUTION = (
     "CAUTION: a regenerative amplifier is a Class 4 laser and its Pockels-cell driver switches "
@@ -37,6 +38,7 @@ class Plan:
     checks: list = field(default_factory=list)  # list[Check]
     cautions: list = field(default_factory=lambda: [CAUTION])
     stability: Optional[Any] = None  # continuous pump: nearest stable round trips etc.
+    cavity_mode: Optional[CavityModeResult] = None  # None: no curvatures and mode_radius typed
 
     @property
     def round_trip_time(self) -> float:
@@ -59,17 +61,18 @@ def make_plan(cavity: Cavity, dump: Union[str, int, None] = None) -> Plan:
     if dump is not None:
         cavity = replace(cavity, dump=dump)
     optics = cavity_optics(cavity)
+    mode = plan_mode(cavity)  # an unstable cavity is an input error (exit 2)
     buildup = plan_buildup(cavity, optics)
     switch_plan = switching.plan_switching(cavity, optics, buildup)
     # the ejected share scales every output alike: the dump choice and the sensitivities stay
     buildup = buildup.with_switching_efficiency(getattr(switch_plan, "switching_efficiency", 1.0))
-    plan = Plan(cavity, optics, buildup, switch_plan)
+    plan = Plan(cavity, optics, buildup, switch_plan, cavity_mode=mode)
     plan.timing = timing.timing_table(cavity, optics, buildup, switch_plan)
     plan.contrast = contrast.plan_contrast(cavity, optics, buildup, switch_plan)
     plan.timing.rows.extend(getattr(plan.contrast, "timing_rows", None) or ())  # cleaner gate, if any
     if cavity.pump.mode == "continuous":
         plan.stability = stability.plan_stability_note(cavity, optics, buildup)
-    plan.checks = run_checks(plan)
+    plan.checks = run_checks(plan) + list(mode.checks if mode is not None else ())
     return plan
 
 
