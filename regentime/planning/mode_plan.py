@@ -395,3 +395,43 @@ def plan_mode_at_crystal(cavity: Cavity) -> float:
     if not mode.stable:
         plan_mode(cavity)  # raises the unstable-cavity error with the full message
     return _radius_of(cavity, mode, _crystal_index(cavity))[0]
+
+
+def beam_profile(cavity: Cavity, points: int = 40):
+    """(z m, w_t m list, w_s m list, [(z, element name)]) along the unfolded half cavity at the
+    operating point; z is the physical position from end mirror 1 (radii inside a medium from
+    its reduced distance)."""
+    import numpy as np
+
+    f_th = thermal_focal_length(cavity, absorbed_pump_power(cavity))
+    mode = solve(cavity, f_th)
+    segs = segments(cavity, f_th)
+    planes = []
+    for plane, m in ((0, mode.tangential), (1, mode.sagittal)):
+        a, b, c, d = abcd.round_trip(tuple(abcd.Item(str(k), s.reduced[plane], s.focal[plane])
+                                           for k, s in enumerate(segs)),
+                                     _end_focals(cavity.elements[0])[plane],
+                                     _end_focals(cavity.elements[-1])[plane])
+        q = 1.0 / complex((d - a) / (2.0 * b), -math.sqrt(1.0 - m.half_trace ** 2) / abs(b))
+        planes.append(q)
+    zs, wts, wss, marks = [0.0], [], [], [(0.0, cavity.elements[0].name)]
+    lam = cavity.wavelength
+    w = lambda q: math.sqrt(lam / (math.pi * (-(1.0 / q).imag)))  # noqa: E731
+    qt, qs = planes
+    wts.append(w(qt)), wss.append(w(qs))
+    z = 0.0
+    for s in segs:
+        n = points if s.length > 0 else 0
+        for k in range(1, n + 1):
+            t = k / n
+            zs.append(z + t * s.length)
+            wts.append(w(qt + t * s.reduced[0]))
+            wss.append(w(qs + t * s.reduced[1]))
+        z += s.length
+        qt, qs = qt + s.reduced[0], qs + s.reduced[1]
+        if s.element is not None:
+            marks.append((z, cavity.elements[s.element].name))
+        qt = abcd._propagate(qt, abcd.thin_lens(s.focal[0]))
+        qs = abcd._propagate(qs, abcd.thin_lens(s.focal[1]))
+    marks.append((z, cavity.elements[-1].name))
+    return np.array(zs), wts, wss, marks
