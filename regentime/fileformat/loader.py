@@ -377,6 +377,9 @@ def _key_line(data, key) -> Optional[int]:
         return None
 
 
+_FLAT_KEYS = {"radius_of_curvature": "radius", "focal_length": "focal length"}
+
+
 def check_value(raw: Any, spec: FieldSpec, path: str) -> Any:
     """One file value -> its model value (SI float, int, str); raises :class:`InputError`.
 
@@ -384,8 +387,13 @@ def check_value(raw: Any, spec: FieldSpec, path: str) -> Any:
     before it reaches the file.
     """
     dim = spec.dimension
+    if spec.key in _FLAT_KEYS and isinstance(raw, str) and raw.strip().lower() == "flat":
+        return math.inf
     if dim in DIMENSIONS:
         value = parse_quantity(raw, dim, path)
+        if spec.key in _FLAT_KEYS and abs(value) < 1e-3:
+            raise InputError(path, raw, f"'flat' or a {_FLAT_KEYS[spec.key]} of at least 1 mm in "
+                             "magnitude")
         if not spec.in_range(value):
             raise InputError(path, raw, spec.expected())
         return value

@@ -285,12 +285,11 @@ def plan_mode(cavity: Cavity, *, require_stable: bool = True) -> Optional[Cavity
     m_worst = _worst_half_trace(mode)
     if require_stable and not mode.stable:
         raise InputError("cavity", _Shown(
-            f"an unstable resonator: half trace (A+D)/2 = {m_worst:.6g}"
+            f"an unstable resonator, half trace (A+D)/2 = {m_worst:.6g}"
             + (" (tangential {:.6g}, sagittal {:.6g})".format(
-                mode.tangential.half_trace, mode.sagittal.half_trace) if two else "")
-            + f" with {_describe(cavity, f_th)}"),
-            "|(A+D)/2| < 1: change the mirror curvatures, the distances, the lenses or the "
-            "pump power (thermal lens)")
+                mode.tangential.half_trace, mode.sagittal.half_trace) if two else "")),
+            f"|(A+D)/2| < 1; the elements: {_describe(cavity, f_th)}; change the mirror "
+            "curvatures, the distances, the lenses or the pump power (thermal lens)")
     elements = _elements(cavity, mode)
     zones, table, scan_max = None, (), 0.0
     if cavity.gain.thermal_lens is not None and power > 0:
