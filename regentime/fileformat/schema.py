@@ -265,6 +265,7 @@ ELEMENTS: dict[str, Section] = {
         _APERTURE,
     )),
 }
+ELEMENTS["lens"] = ELEMENTS.pop("lens")  # newest kind last: menus keep their order
 ELEMENT_KINDS = tuple(ELEMENTS)
 
 TOP = Section("", "top level", _fields(
