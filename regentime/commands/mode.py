@@ -11,7 +11,7 @@ import argparse
 
 from regentime.commands.common import add_file_argument, add_output_options, emit
 
-HELP = "TEM00 cavity mode from ABCD matrices: radius at every element, thermal lens, stable pump range"
+HELP = "TEM00 cavity mode: radius at every element, thermal lens, stable pump range"
 
 EPILOG = """examples:
   regentime mode cavities/yb_100khz_cw.yaml
@@ -24,7 +24,7 @@ officer."""
 
 
 def register(sub) -> None:
-    p = sub.add_parser("mode", help=HELP, description=HELP + ".", epilog=EPILOG,
+    p = sub.add_parser("mode", help=HELP, description="The TEM00 cavity mode from ABCD matrices: the 1/e² radius at every element, the thermal lens and the stable range of absorbed pump power.", epilog=EPILOG,
                        formatter_class=argparse.RawDescriptionHelpFormatter)
     add_file_argument(p, optional=True)
     add_output_options(p, plot=True, formats=("text", "json"))
