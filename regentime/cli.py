@@ -24,6 +24,7 @@ COMMAND_HELP: dict[str, str] = {
     "contrast": "pre- and post-pulse contrast, seed leakage and the pulse cleaner",
     "stability": "shot-to-shot stability map (period doubling) and noise transfer",
     "trace": "read a photodiode trace: real round trip, fitted build-up, switch-out correction",
+    "mode": "TEM00 cavity mode: radius at every element, thermal lens, stable pump range",
     "materials": "list the built-in material library and its sources",
     "tui": "interactive terminal planner",
 }

@@ -11,6 +11,7 @@ so that a later stage can still name the place a problem comes from.
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass, field, replace
 from typing import Literal, Mapping, Optional, Union
 
@@ -29,13 +30,26 @@ class Seed:
 
 
 @dataclass(frozen=True)
+class ThermalLens:
+    """The gain medium's thermal lens: a given focal length, or the data to compute it."""
+
+    focal_length: Optional[float] = None  # m at the operating pump power (given directly)
+    heat_fraction: Optional[float] = None  # share of the absorbed pump turned to heat; None: quantum defect
+    dn_dt: Optional[float] = None  # 1/K; None: the library's value
+    conductivity: Optional[float] = None  # W/(m K); None: the library's value
+    pump_radius: Optional[float] = None  # m; None: gain.pump_radius (end) or required (side: rod radius)
+    pumping: Literal["end", "side"] = "end"
+
+
+@dataclass(frozen=True)
 class Gain:
     medium: GainMedium
-    mode_radius: float  # m, 1/e^2 radius of the cavity mode in the crystal
+    mode_radius: Optional[float]  # m, 1/e^2 radius in the crystal; None: computed from the cavity mode
     profile: Profile = "flat-top"
     pump_radius: Optional[float] = None  # m, 1/e^2 (gaussian) or edge (flat-top) radius; None: = mode_radius
     pump_profile: Profile = "gaussian"  # used only when profile == "gaussian"
     rings: int = 64  # radial rings for the gaussian extraction
+    thermal_lens: Optional[ThermalLens] = None
 
 
 @dataclass(frozen=True)
@@ -58,6 +72,7 @@ class Element:
     index: int  # position in the file's cavity list (0-based)
     path: str  # "cavity[3].pockels_cell"
     name: str  # user's name or a generated one ("space 2")
+    aperture: Optional[float] = None  # m, clear aperture diameter (cell: electrode gap)
 
     kind = "element"
 
@@ -74,6 +89,8 @@ class Element:
 @dataclass(frozen=True)
 class Mirror(Element):
     reflectivity: float = 1.0
+    radius_of_curvature: float = math.inf  # m, concave positive; inf: flat
+    angle_of_incidence: float = 0.0  # rad (fold mirrors)
     kind = "mirror"
 
     @property
@@ -106,6 +123,7 @@ class Plate(Element):
     group_index: Optional[float] = None
     axis: str = "o"
     single_pass_transmission: float = 1.0
+    brewster: bool = False  # Brewster-cut: reduced distance L/n³ tangential, L/n sagittal
     kind = "plate"
 
     @property
@@ -186,6 +204,7 @@ class GainElement(Element):
     length: float = 0.0
     group_index: Optional[float] = None
     single_pass_transmission: float = 1.0  # passive loss (coatings, scatter)
+    brewster: bool = False  # Brewster-cut: reduced distance L/n³ tangential, L/n sagittal
     kind = "gain_medium"
 
     @property
@@ -197,7 +216,19 @@ class GainElement(Element):
         return self.single_pass_transmission
 
 
-AnyElement = Union[Mirror, Space, Plate, PockelsCell, Waveplate, Polarizer, GainElement]
+@dataclass(frozen=True)
+class Lens(Element):
+    """A thin lens (or any element acting as one) of focal length ``focal_length``."""
+
+    focal_length: float = math.inf  # m, positive converging
+    kind = "lens"
+
+    @property
+    def transmission(self) -> float:
+        return 1.0
+
+
+AnyElement = Union[Mirror, Space, Plate, PockelsCell, Waveplate, Polarizer, GainElement, Lens]
 
 
 # ----- electronics ------------------------------------------------------------------------

@@ -256,7 +256,8 @@ def test_delete_flow_keys(doc):
     doc.delete("cavity[0].mirror.name")  # the first key
     doc.delete("cables.pump.velocity_factor")  # the last key, after the kind lookup
     removed, added = _diff(before, doc.text())
-    assert added == ["  - mirror: {reflectivity: 99.8 %}     # cell-side end mirror",
+    assert added == ["  - mirror: {reflectivity: 99.8 %, radius_of_curvature: 6 m}  # cell-side end "
+                     "mirror, concave (plano-concave cavity)",
                      "  - polarizer: {name: tfp, extinction_ratio: 500, reflection_s: 99.5 %}",
                      "  pump:       {length: 3 m}"]
     assert len(removed) == 3

@@ -108,6 +108,10 @@ def _rules(ck: Checker, data, top: dict, elements: list) -> None:
                            f"a name not used before (cavity[{names[name]}] has it)", iline)
                 names[name] = i
     for i, kind, fields, iline in elements:
+        if kind == "mirror" and i in (0, n - 1) and fields.get("angle_of_incidence", 0.0):
+            ck.err(f"cavity[{i}].mirror.angle_of_incidence", raw[i]["mirror"].get(
+                   "angle_of_incidence"), "0 deg on an end mirror (it reflects the beam back "
+                   "on itself); the angle belongs to fold mirrors", iline)
         if kind == "pockels_cell" and "quarter_wave_voltage" in fields and \
                 "half_wave_voltage" in fields:
             ck.err(f"cavity[{i}].pockels_cell.half_wave_voltage", Shown("both voltages"),
@@ -228,10 +232,10 @@ def _build(ck: Checker, data, top: dict, elements: list, source, default_name) -
         seed=m.Seed(energy=seed["energy"], duration=seed["duration"],
                     train_rate=seed["train_rate"], arrival=seed.get("arrival", 0.0),
                     bandwidth=seed.get("bandwidth")),
-        gain=m.Gain(medium=medium, mode_radius=gain["mode_radius"],
+        gain=m.Gain(medium=medium, mode_radius=gain.get("mode_radius"),
                     profile=gain.get("profile", "flat-top"), pump_radius=gain.get("pump_radius"),
                     pump_profile=gain.get("pump_profile", "gaussian"),
-                    rings=gain.get("rings", 64)),
+                    rings=gain.get("rings", 64), thermal_lens=_thermal_lens(gain)),
         pump=m.Pump(mode=pump["mode"], wavelength=pump["wavelength"],
                     absorbed_fraction=pump["absorbed_fraction"], overlap=pump.get("overlap", 1.0),
                     energy=pump.get("energy"), power=pump.get("power"),
@@ -264,6 +268,17 @@ def _build(ck: Checker, data, top: dict, elements: list, source, default_name) -
             latency=c["latency"], cable=cable, output=cavity.outputs["cleaner"],
             path_delay=c.get("path_delay", 0.0)))
     return cavity
+
+
+def _thermal_lens(gain: dict):
+    """``gain.thermal_lens`` -> ThermalLens (None when not given)."""
+    t = gain.get("thermal_lens")
+    if t is None:
+        return None
+    from regentime.fileformat.schema import THERMAL_LENS
+
+    kw = {THERMAL_LENS.fields[k].model or k: v for k, v in t.items()}
+    return m.ThermalLens(**kw)
 
 
 _OVERRIDES = ("emission_cross_section", "absorption_cross_section", "upper_state_lifetime",
@@ -314,7 +329,7 @@ def _outputs(top: dict) -> dict[str, str]:
 
 _MODEL = {"mirror": m.Mirror, "space": m.Space, "plate": m.Plate,
           "pockels_cell": m.PockelsCell, "waveplate": m.Waveplate, "polarizer": m.Polarizer,
-          "gain_medium": m.GainElement}
+          "gain_medium": m.GainElement, "lens": m.Lens}
 
 
 def _elements_model(elements: list, air: str) -> tuple:

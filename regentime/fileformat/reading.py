@@ -375,6 +375,9 @@ def key_line(data, key) -> Optional[int]:
         return None
 
 
+_FLAT_KEYS = {"radius_of_curvature": "radius", "focal_length": "focal length"}
+
+
 def check_value(raw: Any, spec: FieldSpec, path: str) -> Any:
     """One file value -> its model value (SI float, int, str); raises :class:`InputError`.
 
@@ -382,8 +385,13 @@ def check_value(raw: Any, spec: FieldSpec, path: str) -> Any:
     before it reaches the file.
     """
     dim = spec.dimension
+    if spec.key in _FLAT_KEYS and isinstance(raw, str) and raw.strip().lower() == "flat":
+        return math.inf
     if dim in DIMENSIONS:
         value = parse_quantity(raw, dim, path)
+        if spec.key in _FLAT_KEYS and abs(value) < 1e-3:
+            raise InputError(path, raw, f"'flat' or a {_FLAT_KEYS[spec.key]} of at least 1 mm in "
+                             "magnitude")
         if not spec.in_range(value):
             raise InputError(path, raw, spec.expected())
         return value
@@ -417,6 +425,10 @@ def check_value(raw: Any, spec: FieldSpec, path: str) -> Any:
             raise InputError(path, raw, f"'{FORMAT_VERSION}' (this version of regentime reads "
                              f"format {FORMAT_VERSION} only)")
         raise InputError(path, raw, f"one of {', '.join(spec.choices)}{hint}")
+    if dim == "flag":
+        if isinstance(raw, bool):
+            return raw
+        raise InputError(path, raw, "true or false")
     if dim == "text":
         if isinstance(raw, bool) or not isinstance(raw, (str, int, float)):
             raise InputError(path, raw, "a line of text")

@@ -128,12 +128,34 @@ def _group_index(what="group index n_g = n − λ dn/dλ; overrides the dispersi
 
 _NAME = _f("name", "text", "your name for the element, used in reports",
            default="generated: 'mirror 1', 'space 3' …")
+_APERTURE = _f("aperture", "length", "clear aperture diameter, checked against the mode "
+               "(clipping warning below 3 mode diameters, error below 2)", default="none",
+               lo=1e-5, hi=0.5)
+_BREWSTER = _f("brewster", "flag", "Brewster-cut faces: the mode sees L/n³ in the tangential "
+               "and L/n in the sagittal plane", default="false")
 
 CABLE = Section("cable", "a trigger cable: its signal delay is length / (velocity_factor · c)", _fields(
     _f("length", "length", "cable length", required=True, lo=0.0, hi=1000.0),
     _f("velocity_factor", "ratio", "signal speed / c (solid polyethylene coax 0.66; foam about "
        "0.8; PTFE about 0.69)", default="0.66", lo=0.1, hi=1.0),
 ), shorthand="length")
+
+THERMAL_LENS = Section("thermal_lens", "the pump's thermal lens in the gain medium, a thin "
+                       "lens at the crystal's centre: a focal length, or the data to compute it "
+                       "from the absorbed average pump power", _fields(
+    _f("focal_length", "length", "focal length at the operating pump power (scales as "
+       "1/pump power for the stable range)", default="computed", lo=-1000.0, hi=1000.0),
+    _f("heat_fraction", "ratio", "share of the absorbed pump turned to heat",
+       default="the quantum defect 1 − λ_pump/λ_laser", lo=0.0, hi=1.0, lo_open=True),
+    _f("dn_dt", "number", "thermo-optic coefficient dn/dT in 1/K", default="the library's",
+       lo=-1e-4, hi=1e-4),
+    _f("thermal_conductivity", "number", "thermal conductivity in W/(m·K)",
+       default="the library's", lo=0.1, hi=3000.0, lo_open=True, model="conductivity"),
+    _f("pump_radius", "length", "pump radius (end pumping) or rod radius (side pumping)",
+       default="gain.pump_radius", lo=1e-6, hi=0.1),
+    _f("pumping", "choice", "end-pumped (Innocenzi et al. 1990) or side-pumped rod "
+       "(Koechner ch. 7)", default="end", choices=("end", "side")),
+), shorthand="focal_length")
 
 DRIVES = ("switch_on", "switch_off", "gate", "pump", "scope", "cleaner")
 _DRIVE_HELP = {
@@ -150,7 +172,19 @@ ELEMENTS: dict[str, Section] = {
         _NAME,
         _f("reflectivity", "ratio", "reflectivity at the laser wavelength", default="100 %",
            lo=0.0, hi=1.0, lo_open=True),
+        _f("radius_of_curvature", "length", "radius of curvature, concave positive, convex "
+           "negative", default="flat", lo=-1000.0, hi=1000.0),
+        _f("angle_of_incidence", "angle", "angle of incidence on a fold mirror: focal length "
+           "R·cosθ/2 tangential, R/(2·cosθ) sagittal", default="0 deg", lo=0.0,
+           hi=math.radians(80.0)),
+        _APERTURE,
     )),
+    "lens": Section("lens", "a thin lens (or an element acting as one)", _fields(
+        _NAME,
+        _f("focal_length", "length", "focal length, positive converging, negative diverging",
+           required=True, lo=-1000.0, hi=1000.0),
+        _APERTURE,
+    ), shorthand="focal_length"),
     "space": Section("space", "free space between elements (air or vacuum)", _fields(
         _NAME,
         _f("length", "length", "length of the gap", required=True, lo=0.0, hi=100.0),
@@ -168,6 +202,8 @@ ELEMENTS: dict[str, Section] = {
         _group_index(),
         _f("axis", "choice", "which index of a birefringent material the beam sees",
            default="o", choices=("o", "e")),
+        _BREWSTER,
+        _APERTURE,
     )),
     "pockels_cell": Section("pockels_cell", "the Pockels cell", _fields(
         _NAME,
@@ -203,6 +239,7 @@ ELEMENTS: dict[str, Section] = {
         _f("thickness", "length", "material thickness crossed (zero-order plates: 0 or a "
            "measured thickness)", default="0 mm", lo=0.0, hi=0.05, model="length"),
         _group_index(),
+        _APERTURE,
     )),
     "polarizer": Section("polarizer", "the polarizer: transmits P into the cavity, reflects S "
                          "in and out", _fields(
@@ -216,6 +253,7 @@ ELEMENTS: dict[str, Section] = {
            hi=0.1, model="length"),
         _f("material", "material", "substrate material", default="fused_silica"),
         _group_index(),
+        _APERTURE,
     )),
     "gain_medium": Section("gain_medium", "the gain crystal's place in the cavity (its "
                            "material is given under gain:)", _fields(
@@ -223,8 +261,11 @@ ELEMENTS: dict[str, Section] = {
         _f("length", "length", "crystal length", required=True, lo=1e-4, hi=0.5),
         _group_index(),
         _transmission("transmission", "passive single-pass transmission (coatings, scatter)"),
+        _BREWSTER,
+        _APERTURE,
     )),
 }
+ELEMENTS["lens"] = ELEMENTS.pop("lens")  # newest kind last: menus keep their order
 ELEMENT_KINDS = tuple(ELEMENTS)
 
 TOP = Section("", "top level", _fields(
@@ -258,7 +299,8 @@ TOP = Section("", "top level", _fields(
     "gain": Section("gain", "the gain medium and the mode in it", _fields(
         _f("material", "gain_material", "gain-medium library key", required=True),
         _f("mode_radius", "length", "1/e² radius of the cavity mode in the crystal",
-           required=True, lo=1e-6, hi=0.1),
+           default="computed from the cavity (mirror curvatures, lenses, thermal lens)",
+           lo=1e-6, hi=0.1),
         _f("profile", "choice", "flat-top, or gaussian (radially resolved extraction)",
            default="flat-top", choices=PROFILES),
         _f("pump_radius", "length", "pump radius: 1/e² (gaussian) or edge (flat-top)",
@@ -279,7 +321,7 @@ TOP = Section("", "top level", _fields(
            lo=1e-15, hi=1e-3),
         _f("doping_density", "number_density", "active-ion density; overrides the library "
            "value", lo=0.0, hi=1e28),
-    ), required=True),
+    ), required=True, sections={"thermal_lens": THERMAL_LENS}),
     "pump": Section("pump", "the pump", _fields(
         _f("mode", "choice", "pulsed or continuous", required=True,
            choices=("pulsed", "continuous")),

@@ -79,6 +79,21 @@ def thermal_focal_length(
     return math.pi * conductivity * pump_radius**2 / (heat_power * dn_dt)
 
 
+def side_pumped_focal_length(
+    heat_power: float, conductivity: float, dn_dt: float, rod_radius: float
+) -> float:
+    """Thermal-lens focal length of a uniformly heated, side-pumped rod (m), dn/dT term only.
+
+    f = 2·π·K·r0² / (P_heat · dn/dT) = K·A / (P_heat · dn/dT / 2), A = π r0² the rod's
+    cross-section, K in W/(m·K), r0 in m, P_heat in W, dn/dT in 1/K; the photo-elastic and
+    end-face terms are neglected (Koechner, Solid-State Laser Engineering, ch. 7, thermal
+    lensing of a uniformly pumped rod).  Returns ``math.inf`` for no heat.
+    """
+    if heat_power * dn_dt == 0.0:
+        return math.inf
+    return 2.0 * math.pi * conductivity * rod_radius**2 / (heat_power * dn_dt)
+
+
 def multiply(*matrices: Matrix) -> Matrix:
     """Product M1·M2·…·Mk (the ray meets Mk first)."""
     a, b, c, d = IDENTITY

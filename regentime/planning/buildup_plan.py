@@ -286,7 +286,8 @@ def _peak_round_trip(output: np.ndarray, cavity: Cavity, gm: GainModel, g0: floa
         raise PlanError(
             f"the build-up overflows: stored fluence {peak_fluence * 1e-4:.3g} J/cm² = "
             f"{peak_fluence / gm.j_sat:.3g} J_sat (gain e^{g0:.3g} per pass) at "
-            f"gain.mode_radius {cavity.gain.mode_radius * 1e6:.3g} µm, {gm.stored_energy:.3g} J "
+            f"{'gain.mode_radius' if cavity.gain.mode_radius is not None else 'computed mode_radius'} "
+            f"{gm.grid.mode_radius * 1e6:.3g} µm, {gm.stored_energy:.3g} J "
             "stored; no real amplifier works there: check mode radius, pump and seed")
     return int(np.argmax(np.where(finite, output, -np.inf)))
 

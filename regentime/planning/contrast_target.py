@@ -10,7 +10,6 @@ from typing import Optional
 from regentime.errors import InputError
 from regentime.model import Cavity, PockelsCell, Polarizer
 from regentime.numfmt import json_float
-from regentime.physics import jones
 from regentime.planning import cell_model
 from regentime.planning.optics import CavityOptics
 from regentime.planning.contrast import ContrastResult

@@ -33,7 +33,9 @@ def gain_model(cavity: Cavity, pump_scale: float = 1.0) -> GainModel:
     j_sat = saturation_fluence(m.emission_cross_section, m.absorption_cross_section, lam)
     xtal = crystal(cavity)
     j_tr = transparency_fluence(j_sat, m.absorption_cross_section, m.doping_density, xtal.length)
-    grid = radial_grid(g.mode_radius, g.profile, g.pump_radius, g.pump_profile, g.rings)
+    from regentime.planning.mode_plan import gain_mode_radius
+
+    grid = radial_grid(gain_mode_radius(cavity), g.profile, g.pump_radius, g.pump_profile, g.rings)
     tau = m.upper_state_lifetime
     if p.mode == "pulsed":
         stored = pulsed_stored_energy(p.energy * pump_scale, p.absorbed_fraction, p.overlap,

@@ -17,6 +17,7 @@ from regentime.planning.contrast import ContrastResult, plan_contrast
 from regentime.planning.stability import StabilityNote, plan_stability_note
 from regentime.planning.switching import SwitchPlan, plan_switching
 from regentime.planning.timing import TimingTable, timing_table
+from regentime.planning.mode_plan import CavityModeResult, plan_mode
 
 CAUTION = (
     "CAUTION: a regenerative amplifier is a Class 4 laser and its Pockels-cell driver switches "
@@ -48,6 +49,7 @@ class Plan:
     checks: tuple[Check, ...]
     stability: Optional[StabilityNote] = None
     cautions: tuple[str, ...] = (CAUTION,)
+    cavity_mode: Optional[CavityModeResult] = None  # None: no curvatures and mode_radius typed
 
     @property
     def round_trip_time(self) -> float:
@@ -72,6 +74,7 @@ def make_plan(cavity: Cavity, dump: Union[DumpRule, str, int, None] = None) -> P
     if dump is not None:
         cavity = replace(cavity, dump=DumpRule.of(dump))
     optics = cavity_optics(cavity)
+    mode = plan_mode(cavity)  # an unstable cavity is an input error (exit 2)
     buildup = plan_buildup(cavity, optics)
     switch_plan = plan_switching(cavity, optics, buildup)
     # the ejected share scales every output alike: the dump choice and the sensitivities stay
@@ -81,8 +84,9 @@ def make_plan(cavity: Cavity, dump: Union[DumpRule, str, int, None] = None) -> P
     timing = timing.with_extra_rows(contrast.timing_rows)  # the cleaner's gate, if any
     stability = (plan_stability_note(cavity, optics, buildup)
                  if cavity.pump.mode == "continuous" else None)
-    checks = run_checks(cavity, buildup, (switch_plan, timing, contrast, stability), stability)
-    return Plan(cavity, optics, buildup, switch_plan, timing, contrast, tuple(checks), stability)
+    checks = run_checks(cavity, buildup, (switch_plan, timing, contrast, stability, mode), stability)
+    return Plan(cavity, optics, buildup, switch_plan, timing, contrast, tuple(checks), stability,
+                cavity_mode=mode)
 
 
 __all__ = ["Plan", "make_plan", "Check", "DumpRule", "CAUTION", "CAUTION_SHORT"]

@@ -97,6 +97,10 @@ def plan_to_dict(plan) -> dict:
         out["contrast"] = {"status": "not computed: contrast model not available in this build"}
     if plan.stability is not None and hasattr(plan.stability, "to_dict"):
         out["stability"] = plan.stability.to_dict()
+    mode = getattr(plan, "cavity_mode", None)
+    out["cavity_mode"] = mode.to_dict() if mode is not None else {
+        "status": "not computed: no mirror curvature, lens or thermal lens given "
+                  "(gain.mode_radius used as typed)"}
     out["checks"] = [c.to_dict() for c in plan.checks]
     out["cannot_be_met"] = plan.cannot_be_met
     out["cautions"] = list(plan.cautions)

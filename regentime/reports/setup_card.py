@@ -108,6 +108,12 @@ def contrast_lines(plan) -> list[str]:
     return list(contrast_summary_lines(plan))
 
 
+def _mode_lines(plan) -> list[str]:
+    from regentime.reports.mode_report import mode_lines
+
+    return mode_lines(getattr(plan, "cavity_mode", None))
+
+
 def _caution() -> str:
     from regentime.planning.plan import CAUTION
 
@@ -156,6 +162,7 @@ def setup_card_text(plan, when: Optional[_dt.datetime] = None) -> str:
         lines += [w for x in window_lines(plan) for w in _wrap(x)]
         lines += ["", "HIGH-VOLTAGE TOLERANCE (shares at the recommended edges)",
                   text_table(_TOL_HEAD, tolerance_rows(plan))]
+    lines += ["", "MODE"] + [w for x in _mode_lines(plan) for w in _wrap(x)]
     lines += ["", "KEY ASSUMPTIONS"] + [w for a in _assumptions(plan) for w in _wrap(a, "  - ")]
     checks = check_lines(plan)
     lines += ["", "CHECKS"] + ([w for c in checks for w in _wrap(c)] or ["  no warnings or errors"])
@@ -185,6 +192,7 @@ def setup_card_md(plan, when: Optional[_dt.datetime] = None) -> str:
         lines += ["", "## Switching windows", "", "50 % points of the high-voltage edge at the cell.", ""]
         lines += [f"- {x}" for x in window_lines(plan)]
         lines += ["", "## High-voltage tolerance", "", md_table(_TOL_HEAD, tolerance_rows(plan))]
+    lines += ["", "## Mode", ""] + [f"- {x}" for x in _mode_lines(plan)]
     lines += ["", "## Key assumptions", ""] + [f"- {a}" for a in _assumptions(plan)]
     checks = check_lines(plan)
     lines += ["", "## Checks", ""] + ([f"- {c}" for c in checks] or ["- no warnings or errors"])

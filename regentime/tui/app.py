@@ -35,6 +35,7 @@ from regentime.tui.field_row import FieldRow
 from regentime.tui.file_actions import FileActions, _lines, _stamp, autosave_path  # noqa: F401
 from regentime.tui.help_screen import HelpScreen
 from regentime.tui.load_error_screen import LoadErrorScreen
+from regentime.tui.mode_panel import ModePanel
 from regentime.tui.panels import ChecksPanel, ContrastPanel, TimingPanel, TracePanel
 from regentime.tui.trace_actions import TraceActions
 
@@ -129,6 +130,7 @@ class PlannerApp(FileActions, TraceActions, App[int]):
                 yield BuildupPlot(id="plot")
                 yield TracePanel(id="trace")
                 yield TimingPanel(id="timing")
+                yield ModePanel(id="mode")
                 with Horizontal(id="lower"):
                     yield ContrastPanel(id="contrast")
                     yield ChecksPanel(id="checks")
@@ -139,6 +141,7 @@ class PlannerApp(FileActions, TraceActions, App[int]):
         self.query_one("#plot").border_title = "build-up"
         self.query_one("#timing").border_title = "switching and delay generator"
         self.query_one("#trace").border_title = "photodiode trace (t loads, a applies, T removes)"
+        self.query_one("#mode").border_title = "cavity mode"
         self.query_one("#contrast").border_title = "contrast"
         self.query_one("#checks").border_title = "checks"
         self.query_one("#editor").border_title = "parameters"
@@ -291,6 +294,7 @@ class PlannerApp(FileActions, TraceActions, App[int]):
         self._clear_cross_marks()
         self.query_one(BuildupPlot).set_plan(plan)
         self.query_one(TimingPanel).show(plan)
+        self.query_one(ModePanel).show(plan)
         self.query_one(ContrastPanel).show(plan)
         self.query_one(ChecksPanel).show(plan)
         self._update_summary()

@@ -123,9 +123,20 @@ class Geometry:
     pump: np.ndarray  # share of the stored energy per ring
 
 
+def mode_radius(cav) -> float:
+    """R0: the typed gain.mode_radius; when left out, the tool's computed cavity mode (the ABCD
+    mode is checked on its own against closed forms in tests/test_abcd.py and
+    tests/test_mode_plan.py, so this cross-check takes it as an input like the loader's)."""
+    if cav.gain.mode_radius is not None:
+        return cav.gain.mode_radius
+    from regentime.planning.mode_plan import gain_mode_radius
+
+    return gain_mode_radius(cav)
+
+
 def geometry(cav, rings: int = 64) -> Geometry:
     g = cav.gain
-    w = g.mode_radius
+    w = mode_radius(cav)
     if g.profile == "flat-top":
         a = np.array([math.pi * w * w])
         return Geometry(a, np.array([1.0]), np.array([1.0]))
