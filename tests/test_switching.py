@@ -45,11 +45,14 @@ def test_erf_edge_10_90_time_is_the_rise_time():
 
 
 def test_pulse_slices_are_a_normalised_gaussian_of_the_given_fwhm():
-    # Gaussian: FWHM = 2√(2 ln 2) σ (any statistics text); weights sum to 1.
-    tau, w = sw.pulse_slices(150e-12, 401)
-    assert w.sum() == pytest.approx(1.0)
+    # Gaussian: FWHM = 2√(2 ln 2) σ (any statistics text); weights sum to 1.  Gauss–Hermite
+    # nodes integrate polynomials of degree < 2n exactly (Abramowitz & Stegun 25.4.46), so the
+    # normal distribution's moments E[τ²] = σ², E[τ⁴] = 3σ⁴ come out to rounding.
+    tau, w = sw.pulse_slices(150e-12)
+    assert w.sum() == pytest.approx(1.0, rel=1e-12)
     sigma = math.sqrt(float(np.sum(w * tau ** 2)))
-    assert sigma * 2 * math.sqrt(2 * math.log(2)) == pytest.approx(150e-12, rel=1e-3)
+    assert sigma * 2 * math.sqrt(2 * math.log(2)) == pytest.approx(150e-12, rel=1e-10)
+    assert float(np.sum(w * tau ** 4)) == pytest.approx(3 * sigma ** 4, rel=1e-10)
 
 
 # ----- windows reduce to the crossing times -------------------------------------------------
