@@ -95,7 +95,8 @@ def run_checks(plan) -> list[Check]:
         out.append(Check("warning", "stability",
                          f"the shot-to-shot steady state at N = {n} is {kind}: output between "
                          f"{b.shots.minimum * 1e3:.4g} and {b.shots.maximum * 1e3:.4g} mJ"))
-    for stage in (plan.switching, plan.timing, plan.contrast, plan.stability):
+    for stage in (plan.switching, plan.timing, plan.contrast, plan.stability,
+                  getattr(plan, "self_lasing", None)):
         for c in getattr(stage, "checks", None) or ():
             out.append(c)
     return out
