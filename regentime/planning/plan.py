@@ -14,6 +14,7 @@ from regentime.physics.optics import CavityOptics, cavity_optics
 from regentime.planning.buildup_plan import BuildupPlan, plan_buildup
 from regentime.planning.checks import Check, run_checks
 from regentime.planning.self_lasing import SelfLasing, plan_self_lasing
+from regentime.planning.spectrum_plan import SpectrumResult, plan_spectrum
 
 CAUTION = (
     "CAUTION: a regenerative amplifier is a Class 4 laser and its Pockels-cell driver switches "
@@ -39,6 +40,7 @@ class Plan:
     cautions: list = field(default_factory=lambda: [CAUTION])
     stability: Optional[Any] = None  # continuous pump: nearest stable round trips etc.
     self_lasing: Optional[SelfLasing] = None  # does the closed cavity lase by itself
+    spectrum: Optional[SpectrumResult] = None  # with seed.bandwidth: gain narrowing and shift
 
     @property
     def round_trip_time(self) -> float:
@@ -72,6 +74,7 @@ def make_plan(cavity: Cavity, dump: Union[str, int, None] = None) -> Plan:
     if cavity.pump.mode == "continuous":
         plan.stability = stability.plan_stability_note(cavity, optics, buildup)
     plan.self_lasing = plan_self_lasing(cavity, optics, buildup)
+    plan.spectrum = plan_spectrum(cavity, buildup)
     plan.checks = run_checks(plan)
     return plan
 
