@@ -100,3 +100,22 @@ def test_missing_seed_with_long_gate_warns():
     assert levels and levels[0] in ("warning", "error")
     msg = [c.message for c in plan.checks if c.name == "self_lasing"][0]
     assert "seed monitor" in msg
+
+
+def test_amplified_noise_against_loop():
+    # E = E_n Σ_j Π_{i=j..K} G_i (Siegman ch. 13 noise input, amplified) against a plain loop
+    rng = np.random.default_rng(2)
+    g = rng.uniform(0.8, 3.0, 40)
+    e = 0.0
+    for x in g:
+        e = (e + 1e-15) * x
+    assert noise.amplified_noise(1e-15, g) == pytest.approx(e, rel=1e-12)
+
+
+def test_ase_in_the_plan():
+    # ASE below the pulse, and the 1e6 seed estimate scales with the seed (linear regime)
+    plan = make_plan(load_cavity(ROOT / "ti_sapphire_1khz.yaml"))
+    a = plan.ase
+    assert 0 < a.energy_J < plan.buildup.output_energy and a.ratio > 1
+    assert a.pedestal_ratio > a.ratio  # the ns pedestal is spread over T_rt ≫ the pulse
+    assert a.seed_energy_for_ratio_J == pytest.approx(plan.cavity.seed.energy * 1e6 / a.ratio)

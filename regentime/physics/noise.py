@@ -84,3 +84,16 @@ def noise_buildup_round_trips(noise_energy: float, log_gain, threshold) -> Optio
     with np.errstate(divide="ignore"):
         hit = np.flatnonzero(log_e >= np.log(thr))
     return int(hit[0]) + 1 if hit.size else None
+
+
+def amplified_noise(noise_energy: float, round_trip_gain) -> float:
+    """Noise energy (J) in the cavity after K round trips of net gains G_1 … G_K, E_n added
+    every round trip before its amplification: E = E_n Σ_{j=1..K} Π_{i=j..K} G_i
+    (the same sum as :func:`noise_buildup_round_trips`; Siegman, Lasers, ch. 13)."""
+    g = np.asarray(round_trip_gain, dtype=float)
+    if g.size == 0 or not noise_energy > 0.0:
+        return 0.0
+    lg = np.log(np.maximum(g, 1e-300))
+    cum = np.cumsum(lg)
+    prev = np.concatenate([[0.0], cum[:-1]])
+    return float(np.exp(np.log(noise_energy) + cum[-1] + np.logaddexp.reduce(-prev)))

@@ -15,6 +15,7 @@ from regentime.planning.buildup_plan import BuildupPlan, plan_buildup
 from regentime.planning.checks import Check, run_checks
 from regentime.planning.self_lasing import SelfLasing, plan_self_lasing
 from regentime.planning.spectrum_plan import SpectrumResult, plan_spectrum
+from regentime.planning.ase_plan import AseResult, plan_ase
 
 CAUTION = (
     "CAUTION: a regenerative amplifier is a Class 4 laser and its Pockels-cell driver switches "
@@ -41,6 +42,7 @@ class Plan:
     stability: Optional[Any] = None  # continuous pump: nearest stable round trips etc.
     self_lasing: Optional[SelfLasing] = None  # does the closed cavity lase by itself
     spectrum: Optional[SpectrumResult] = None  # with seed.bandwidth: gain narrowing and shift
+    ase: Optional[AseResult] = None  # spontaneous emission leaving with the pulse
 
     @property
     def round_trip_time(self) -> float:
@@ -75,6 +77,7 @@ def make_plan(cavity: Cavity, dump: Union[str, int, None] = None) -> Plan:
         plan.stability = stability.plan_stability_note(cavity, optics, buildup)
     plan.self_lasing = plan_self_lasing(cavity, optics, buildup)
     plan.spectrum = plan_spectrum(cavity, buildup)
+    plan.ase = plan_ase(cavity, buildup)
     plan.checks = run_checks(plan)
     return plan
 

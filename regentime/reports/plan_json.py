@@ -101,6 +101,8 @@ def plan_to_dict(plan) -> dict:
         out["self_lasing"] = plan.self_lasing.to_dict()
     if getattr(plan, "spectrum", None) is not None:
         out["spectrum"] = plan.spectrum.to_dict()
+    if getattr(plan, "ase", None) is not None:
+        out["ase"] = plan.ase.to_dict()
     out["checks"] = [c.to_dict() for c in plan.checks]
     out["cannot_be_met"] = plan.cannot_be_met
     out["cautions"] = list(plan.cautions)
