@@ -95,3 +95,15 @@ def test_plan_spectrum_ti_sapphire_example():
     tl = 0.441 * s.output_center_m ** 2 / (sc.c * s.output_fwhm_m)
     assert s.transform_limited_fwhm_s == pytest.approx(tl, rel=0.05)
     assert len(s.by_round_trip) == plan.dump_round_trip
+
+
+def test_plan_plot_writes_the_spectra_and_the_card_says_it(tmp_path, capsys):
+    pytest.importorskip("matplotlib")
+    from regentime.cli import main
+
+    target = tmp_path / "b.png"
+    code = main(["plan", str(ROOT / "ti_sapphire_1khz.yaml"), "--plot", str(target)])
+    out = capsys.readouterr().out
+    assert code == 0 and target.exists()
+    assert (tmp_path / "b_spectrum.png").read_bytes()[:4] == b"\x89PNG"
+    assert "shortest compressed pulse" in out and "self-lasing: no self-lasing" in out
