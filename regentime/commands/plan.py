@@ -71,6 +71,11 @@ def run(args) -> int:
         from regentime.reports.plots import plot_buildup
 
         plot_buildup(plan, args.plot)
+        if plan.spectrum is not None:  # the spectra beside it: <name>_spectrum.png
+            from regentime.reports.spectrum_report import plot_spectrum
+
+            stem, dot, ext = args.plot.rpartition(".")
+            plot_spectrum(plan, f"{stem}_spectrum.{ext}" if dot else f"{args.plot}_spectrum")
     if plan.cannot_be_met:
         errors = [c for c in plan.checks if c.level == "error"]
         from regentime.errors import safe_line

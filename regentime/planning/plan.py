@@ -18,6 +18,9 @@ from regentime.planning.stability import StabilityNote, plan_stability_note
 from regentime.planning.switching import SwitchPlan, plan_switching
 from regentime.planning.timing import TimingTable, timing_table
 from regentime.planning.mode_plan import CavityModeResult, plan_mode
+from regentime.planning.self_lasing import SelfLasing, plan_self_lasing
+from regentime.planning.spectrum_plan import SpectrumResult, plan_spectrum
+from regentime.planning.ase_plan import AseResult, plan_ase
 
 CAUTION = (
     "CAUTION: a regenerative amplifier is a Class 4 laser and its Pockels-cell driver switches "
@@ -50,6 +53,9 @@ class Plan:
     stability: Optional[StabilityNote] = None
     cautions: tuple[str, ...] = (CAUTION,)
     cavity_mode: Optional[CavityModeResult] = None  # None: no curvatures and mode_radius typed
+    self_lasing: Optional[SelfLasing] = None  # does the closed cavity lase by itself
+    spectrum: Optional[SpectrumResult] = None  # with seed.bandwidth: gain narrowing and shift
+    ase: Optional[AseResult] = None  # spontaneous emission leaving with the pulse
 
     @property
     def round_trip_time(self) -> float:
@@ -84,9 +90,13 @@ def make_plan(cavity: Cavity, dump: Union[DumpRule, str, int, None] = None) -> P
     timing = timing.with_extra_rows(contrast.timing_rows)  # the cleaner's gate, if any
     stability = (plan_stability_note(cavity, optics, buildup)
                  if cavity.pump.mode == "continuous" else None)
-    checks = run_checks(cavity, buildup, (switch_plan, timing, contrast, stability, mode), stability)
+    self_lasing = plan_self_lasing(cavity, optics, buildup)
+    spectrum = plan_spectrum(cavity, buildup)
+    ase = plan_ase(cavity, buildup)
+    checks = run_checks(cavity, buildup, (switch_plan, timing, contrast, stability, mode, self_lasing),
+                        stability)
     return Plan(cavity, optics, buildup, switch_plan, timing, contrast, tuple(checks), stability,
-                cavity_mode=mode)
+                cavity_mode=mode, self_lasing=self_lasing, spectrum=spectrum, ase=ase)
 
 
 __all__ = ["Plan", "make_plan", "Check", "DumpRule", "CAUTION", "CAUTION_SHORT"]

@@ -97,10 +97,16 @@ def plan_to_dict(plan) -> dict:
         out["contrast"] = {"status": "not computed: contrast model not available in this build"}
     if plan.stability is not None and hasattr(plan.stability, "to_dict"):
         out["stability"] = plan.stability.to_dict()
-    mode = getattr(plan, "cavity_mode", None)
+    mode = plan.cavity_mode
     out["cavity_mode"] = mode.to_dict() if mode is not None else {
         "status": "not computed: no mirror curvature, lens or thermal lens given "
                   "(gain.mode_radius used as typed)"}
+    if plan.self_lasing is not None:
+        out["self_lasing"] = plan.self_lasing.to_dict()
+    if plan.spectrum is not None:
+        out["spectrum"] = plan.spectrum.to_dict()
+    if plan.ase is not None:
+        out["ase"] = plan.ase.to_dict()
     out["checks"] = [c.to_dict() for c in plan.checks]
     out["cannot_be_met"] = plan.cannot_be_met
     out["cautions"] = list(plan.cautions)

@@ -111,7 +111,7 @@ def contrast_lines(plan) -> list[str]:
 def _mode_lines(plan) -> list[str]:
     from regentime.reports.mode_report import mode_lines
 
-    return mode_lines(getattr(plan, "cavity_mode", None))
+    return mode_lines(plan.cavity_mode)
 
 
 def _caution() -> str:
@@ -169,6 +169,9 @@ def setup_card_text(plan, when: Optional[_dt.datetime] = None) -> str:
     contrast = contrast_lines(plan)
     if contrast:
         lines += ["", "CONTRAST"] + [w for c in contrast for w in _wrap(c)]
+    from regentime.reports.spectrum_report import spectrum_lines
+
+    lines += ["", "SELF-LASING, SPECTRUM, ASE"] + [w for c in spectrum_lines(plan) for w in _wrap(c)]
     if plan.cannot_be_met:
         lines += ["", "THIS PLAN CANNOT BE MET AS IT STANDS: see the errors above."]
     lines += [""] + _wrap(_caution(), "")

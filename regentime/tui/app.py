@@ -37,6 +37,7 @@ from regentime.tui.help_screen import HelpScreen
 from regentime.tui.load_error_screen import LoadErrorScreen
 from regentime.tui.mode_panel import ModePanel
 from regentime.tui.panels import ChecksPanel, ContrastPanel, TimingPanel, TracePanel
+from regentime.tui.spectrum_panel import SpectrumPanel
 from regentime.tui.trace_actions import TraceActions
 
 DEMO_TITLE = "built-in demo (invented scenario)"
@@ -134,6 +135,7 @@ class PlannerApp(FileActions, TraceActions, App[int]):
                 with Horizontal(id="lower"):
                     yield ContrastPanel(id="contrast")
                     yield ChecksPanel(id="checks")
+                yield SpectrumPanel(id="spectrum")
         yield Static(f"⚠ {CAUTION_SHORT}", id="caution")
         yield Footer()
 
@@ -297,6 +299,7 @@ class PlannerApp(FileActions, TraceActions, App[int]):
         self.query_one(ModePanel).show(plan)
         self.query_one(ContrastPanel).show(plan)
         self.query_one(ChecksPanel).show(plan)
+        self.query_one(SpectrumPanel).show(plan)
         self._update_summary()
         self.last_plan_seconds = time.perf_counter() - started
         if self.trace_result is not None:

@@ -13,4 +13,4 @@ class ModePanel(ResultPanel):
     def show(self, plan) -> None:
         from regentime.reports.mode_report import mode_lines
 
-        self.show_text(Text("\n".join(mode_lines(getattr(plan, "cavity_mode", None)))))
+        self.show_text(Text("\n".join(mode_lines(plan.cavity_mode))))
