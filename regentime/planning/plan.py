@@ -13,6 +13,7 @@ from regentime.model import Cavity
 from regentime.physics.optics import CavityOptics, cavity_optics
 from regentime.planning.buildup_plan import BuildupPlan, plan_buildup
 from regentime.planning.checks import Check, run_checks
+from regentime.plan_views import PlanViews  # notebook views; reports imported only when called
 
 CAUTION = (
     "CAUTION: a regenerative amplifier is a Class 4 laser and its Pockels-cell driver switches "
@@ -27,7 +28,7 @@ CAUTION_SHORT = (
 
 
 @dataclass
-class Plan:
+class Plan(PlanViews):
     cavity: Cavity
     optics: CavityOptics
     buildup: BuildupPlan
