@@ -12,7 +12,7 @@ def __getattr__(name: str):
 
         return plan
     if name == "sweep":
-        from regentime.sweep import sweep
+        from regentime.sweeps import sweep
 
         return sweep
     raise AttributeError(f"module 'regentime' has no attribute {name!r}")

@@ -24,6 +24,7 @@ COMMAND_HELP: dict[str, str] = {
     "contrast": "pre- and post-pulse contrast, seed leakage and the pulse cleaner",
     "stability": "shot-to-shot stability map (period doubling) and noise transfer",
     "trace": "read a photodiode trace: real round trip, fitted build-up, switch-out correction",
+    "sweep": "plan every combination of values of one or more keys and tabulate the key figures",
     "materials": "list the built-in material library and its sources",
     "tui": "interactive terminal planner",
 }
