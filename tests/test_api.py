@@ -96,3 +96,12 @@ def test_plots_return_axes():
     assert ax.get_lines()  # something was drawn
     assert p.plot_contrast() is not None
     plt.close("all")
+
+
+def test_notebook_example_runs():
+    pytest.importorskip("matplotlib")
+    out = subprocess.run([sys.executable, str(ROOT / "docs" / "notebook_example.py")],
+                         capture_output=True, text=True, cwd=ROOT, timeout=300)
+    assert out.returncode == 0, out.stderr
+    assert "switch out after 11 round trips" in out.stdout
+    assert out.stdout.count(" mJ ") >= 4  # the sweep's table has its rows
