@@ -11,7 +11,7 @@ from __future__ import annotations
 import argparse
 import sys
 
-from regentime.commands.common import add_file_argument, add_output_options, emit
+from regentime.commands.common import add_dump_option, add_file_argument, add_output_options, emit
 
 HELP = "plan every combination of values of one or more keys and tabulate the key figures"
 EPILOG = """examples:
@@ -32,7 +32,7 @@ def register(sub) -> None:
     add_file_argument(p)
     p.add_argument("settings", nargs="+", metavar="KEY=VALUES",
                    help="a key path and START:STOP:COUNT, log:START:STOP:COUNT or V1,V2,...")
-    p.add_argument("--dump", metavar="N|auto|steady", help="override the file's dump rule")
+    add_dump_option(p)
     p.add_argument("--figure", default="output_energy_J", metavar="NAME",
                    help="the figure drawn by --plot (default output_energy_J)")
     p.add_argument("--outputs", metavar="NAME,NAME", help="the figures to tabulate (default all)")
@@ -144,7 +144,8 @@ def run(args) -> int:
         raise InputError("--plot", args.plot, "one or two swept keys to draw against")
     if args.workers is not None and args.workers < 1:
         raise InputError("--workers", args.workers, "a number of processes ≥ 1")
-    show = not args.no_progress and sys.stderr.isatty()
+    quiet = getattr(args, "quiet", False)
+    show = not (args.no_progress or quiet) and sys.stderr.isatty()
 
     def progress(done: int, total: int) -> None:
         if show:
@@ -154,8 +155,9 @@ def run(args) -> int:
                    progress=progress)
     if show:
         print(file=sys.stderr)
-    print(f"sweep: {len(result.rows)} of {result.total} combinations planned"
-          + (" (interrupted: the rows done so far)" if result.interrupted else ""), file=sys.stderr)
+    if not quiet or result.interrupted:
+        print(f"sweep: {len(result.rows)} of {result.total} combinations planned"
+              + (" (interrupted: the rows done so far)" if result.interrupted else ""), file=sys.stderr)
     if args.format == "json":
         import json
 
