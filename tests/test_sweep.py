@@ -81,3 +81,14 @@ def test_cli_json_and_plot(tmp_path, capsys):
     d = json.loads(capsys.readouterr().out)
     assert d["done"] == d["total"] == 4 and d["keys"] == ["pump.energy", "seed.energy"]
     assert png.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
+
+
+def test_ctrl_c_keeps_the_rows_done():
+    def progress(done, total):
+        if done == 2:
+            raise KeyboardInterrupt  # as ctrl-c would, between two plans
+
+    r = regentime.sweep(TI, {"pump.energy": ["6 mJ", "8 mJ", "10 mJ", "12 mJ"]},
+                        outputs=["output_energy_J"], workers=1, progress=progress)
+    assert r.interrupted and len(r.rows) == 2 and r.total == 4
+    assert [row["pump.energy"] for row in r.rows] == ["6 mJ", "8 mJ"]
