@@ -25,6 +25,7 @@ COMMAND_HELP: dict[str, str] = {
     "stability": "shot-to-shot stability map (period doubling) and noise transfer",
     "trace": "read a photodiode trace: real round trip, fitted build-up, switch-out correction",
     "mode": "TEM00 cavity mode: radius at every element, thermal lens, stable pump range",
+    "sweep": "plan every combination of values of one or more keys and tabulate the key figures",
     "materials": "list the built-in material library and its sources",
     "tui": "interactive terminal planner",
 }
@@ -64,6 +65,9 @@ def build_parser(argv: list[str] | None = None, *, every: bool = False) -> argpa
         formatter_class=argparse.RawDescriptionHelpFormatter,
     )
     parser.add_argument("--version", action="version", version=f"regentime {__version__}")
+    from regentime.commands.common import add_global_options
+
+    add_global_options(parser, top=True)
     sub = parser.add_subparsers(dest="command", metavar="COMMAND")
     chosen = _chosen_command(argv)
     for name in COMMANDS:
@@ -78,6 +82,8 @@ def build_parser(argv: list[str] | None = None, *, every: bool = False) -> argpa
             sub.add_parser(name, help=COMMAND_HELP[name])
             continue
         module.register(sub)
+    for command_parser in sub.choices.values():  # -q/-v/--strict also after the command
+        add_global_options(command_parser)
     return parser
 
 
@@ -116,12 +122,12 @@ def main(argv: list[str] | None = None) -> int:
         print(
             f"internal error (a bug in regentime): {type(exc).__name__}: {exc}\n"
             "Please report it with the cavity file and the command line; "
-            "set REGENTIME_DEBUG=1 to see the traceback.",
+            "add -v (or set REGENTIME_DEBUG=1) to see the traceback.",
             file=sys.stderr,
         )
         import os
 
-        if os.environ.get("REGENTIME_DEBUG"):
+        if getattr(args, "verbose", False) or os.environ.get("REGENTIME_DEBUG"):
             traceback.print_exc()
         return 1
 

@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from regentime.commands.common import add_file_argument, add_output_options, emit
+from regentime.commands.common import add_dump_option, add_file_argument, add_output_options, emit
 
 
 def register(sub) -> None:
@@ -14,7 +14,7 @@ def register(sub) -> None:
         epilog="example:\n  regentime buildup cavities/ti_sapphire_1khz.yaml --plot buildup.png",
         formatter_class=__import__("argparse").RawDescriptionHelpFormatter)
     add_file_argument(p)
-    p.add_argument("--dump", metavar="RULE", help="override the file's dump: auto, steady or N")
+    add_dump_option(p)
     add_output_options(p, plot=True)
     p.set_defaults(run=run)
 

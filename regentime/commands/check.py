@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from regentime.commands.common import add_file_argument, add_output_options, emit
+from regentime.commands.common import add_file_argument, add_output_options, emit, plan_exit
 
 
 def register(sub) -> None:
@@ -41,4 +41,4 @@ def run(args) -> int:
         verdict = "the plan cannot be met (see the errors)" if plan.cannot_be_met else "file valid; plan can be met"
         text = f"{cavity.source or 'built-in demo'}: {verdict}\n{checks_text(plan)}\n\n{CAUTION}"
     emit(args, text)
-    return 3 if plan.cannot_be_met else 0
+    return plan_exit(args, plan)

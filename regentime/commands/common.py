@@ -42,3 +42,32 @@ def emit(args: argparse.Namespace, text: str) -> None:
         write_atomic(out, text)
     else:
         sys.stdout.write(text)
+
+
+def add_dump_option(parser: argparse.ArgumentParser) -> None:
+    """``--dump N|auto|steady``: the same spelling and help in every command."""
+    parser.add_argument("--dump", metavar="N|auto|steady",
+                        help="override the file's dump rule: a round trip N, auto or steady")
+
+
+def add_global_options(parser: argparse.ArgumentParser, top: bool = False) -> None:
+    """``-q``, ``-v`` and ``--strict`` before or after the command (after it, the command's
+    value only replaces the top-level one when given: SUPPRESS keeps the default out)."""
+    default = {} if top else {"default": argparse.SUPPRESS}
+    parser.add_argument("-q", "--quiet", action="store_true", **default,
+                        help="results only: no notes or progress on stderr (the safety caution stays)")
+    parser.add_argument("-v", "--verbose", action="store_true", **default,
+                        help="show the traceback of an internal error")
+    parser.add_argument("--strict", action="store_true", **default,
+                        help="exit 3 when the plan has any warning")
+
+
+def plan_exit(args: argparse.Namespace, plan) -> int:
+    """0, or 3 when the plan cannot be met (or, with ``--strict``, has a warning)."""
+    if plan.cannot_be_met:
+        return 3
+    if getattr(args, "strict", False) and any(c.level == "warning" for c in plan.checks):
+        if not getattr(args, "quiet", False):
+            print("strict: the plan has warnings (exit 3)", file=sys.stderr)
+        return 3
+    return 0

@@ -10,7 +10,7 @@ import argparse
 import sys
 
 from regentime.atomic_write import write_atomic
-from regentime.commands.common import add_file_argument, add_output_options, emit
+from regentime.commands.common import add_dump_option, add_file_argument, add_output_options, emit
 
 EPILOG = """examples:
   regentime contrast cavities/ti_sapphire_1khz.yaml
@@ -40,7 +40,7 @@ def register(subparsers) -> None:
     p.add_argument("--span", metavar="TIME",
                    help="half-width of the window around the main pulse for the listed seed pulses and "
                         "the summed satellite energy (e.g. '150 ns'; default 10 round trips)")
-    p.add_argument("--dump", metavar="N|auto|steady", help="override the file's dump rule")
+    add_dump_option(p)
     add_output_options(p, plot=True)
     p.set_defaults(run=run)
 
@@ -95,7 +95,7 @@ def run(args: argparse.Namespace) -> int:
     text = rep.render(plan, args.format, targets)
     emit(args, text)
     if args.format == "csv":
-        from regentime.planning.plan import CAUTION_SHORT
+        from regentime.safety import CAUTION_SHORT
 
         print(CAUTION_SHORT, file=sys.stderr)
     if args.plot:

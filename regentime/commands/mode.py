@@ -32,7 +32,7 @@ def register(sub) -> None:
 
 
 def render(cavity, mode, fmt: str) -> str:
-    from regentime.planning.plan import CAUTION_SHORT
+    from regentime.safety import CAUTION_SHORT
 
     if fmt == "json":
         import json

@@ -11,7 +11,7 @@ from __future__ import annotations
 import argparse
 import sys
 
-from regentime.commands.common import add_file_argument, add_output_options, emit
+from regentime.commands.common import add_dump_option, add_file_argument, add_output_options, emit, plan_exit
 
 EPILOG = """examples:
   regentime plan cavities/ti_sapphire_1khz.yaml
@@ -35,7 +35,7 @@ def register(sub) -> None:
                     "(text or Markdown), JSON or the generator table as CSV.",
         epilog=EPILOG, formatter_class=argparse.RawDescriptionHelpFormatter)
     add_file_argument(p, optional=True)
-    p.add_argument("--dump", metavar="N|auto|steady", help="override the file's dump rule")
+    add_dump_option(p)
     add_output_options(p, plot=True)
     p.set_defaults(run=run)
 
@@ -64,7 +64,7 @@ def run(args) -> int:
     plan = make_plan(cavity, dump=parse_dump(args.dump))
     emit(args, render(plan, args.format))
     if args.format == "csv":  # the table stays machine-readable; the caution goes to the terminal
-        from regentime.planning.plan import CAUTION_SHORT
+        from regentime.safety import CAUTION_SHORT
 
         print(CAUTION_SHORT, file=sys.stderr)
     if args.plot:
@@ -76,7 +76,7 @@ def run(args) -> int:
 
             stem, dot, ext = args.plot.rpartition(".")
             plot_spectrum(plan, f"{stem}_spectrum.{ext}" if dot else f"{args.plot}_spectrum")
-    if plan.cannot_be_met:
+    if plan.cannot_be_met and not args.quiet:
         errors = [c for c in plan.checks if c.level == "error"]
         from regentime.errors import safe_line
 
@@ -84,5 +84,4 @@ def run(args) -> int:
               file=sys.stderr)
         for c in errors[:3]:
             print(safe_line(f"  [{c.name}] {c.message}"), file=sys.stderr)
-        return 3
-    return 0
+    return plan_exit(args, plan)

@@ -5,7 +5,7 @@ from __future__ import annotations
 import argparse
 import sys
 
-from regentime.commands.common import add_file_argument, add_output_options, emit
+from regentime.commands.common import add_dump_option, add_file_argument, add_output_options, emit
 
 EPILOG = """examples:
   regentime stability cavities/yb_100khz_cw.yaml
@@ -50,7 +50,7 @@ def register(sub) -> None:
                    help="random-number seed of the Monte-Carlo (same seed, same numbers; default 0)")
     p.add_argument("--at", metavar="N", type=int, help="round trips of the bifurcation diagram against rate "
                                                       "and of the Monte-Carlo (default: the plan's switch-out)")
-    p.add_argument("--dump", metavar="RULE", help="override the file's dump: auto, steady or N")
+    add_dump_option(p)
     p.add_argument("--no-progress", action="store_true", help="no progress bar on standard error")
     add_output_options(p, plot=True)
     p.set_defaults(run=run)

@@ -21,21 +21,13 @@ from regentime.planning.mode_plan import CavityModeResult, plan_mode
 from regentime.planning.self_lasing import SelfLasing, plan_self_lasing
 from regentime.planning.spectrum_plan import SpectrumResult, plan_spectrum
 from regentime.planning.ase_plan import AseResult, plan_ase
+from regentime.plan_views import PlanViews  # notebook views; reports imported only when called
 
-CAUTION = (
-    "CAUTION: a regenerative amplifier is a Class 4 laser and its Pockels-cell driver switches "
-    "kilovolts; both can kill or blind. Follow IEC 60825-1 / ANSI Z136.1 and IEC 61010-1, your "
-    "local laser and electrical safety rules and your laser safety officer. This timing is a plan: "
-    "verify it at low pump power with a fast photodiode before full power."
-)
-CAUTION_SHORT = (
-    "Class 4 laser, kV switch driver: follow IEC 60825-1/ANSI Z136.1, IEC 61010-1, local rules and "
-    "your laser safety officer; verify timing at low pump power with a photodiode first."
-)
+from regentime.safety import CAUTION, CAUTION_SHORT
 
 
 @dataclass(frozen=True)
-class Plan:
+class Plan(PlanViews):
     """Everything planned for one cavity; built once by :func:`make_plan`, never changed.
 
     Every stage is present for every cavity; ``stability`` is the shot-to-shot note of a

@@ -32,7 +32,7 @@ def _db(r: float) -> str:
 
 
 def _caution() -> str:
-    from regentime.planning.plan import CAUTION
+    from regentime.safety import CAUTION
 
     return CAUTION
 
@@ -201,7 +201,7 @@ def _num(x: float):
 
 def to_dict(plan, targets=None) -> dict:
     """JSON object of ``regentime contrast`` (the plan's ``contrast`` object plus context)."""
-    from regentime.planning.plan import CAUTION
+    from regentime.safety import CAUTION
 
     c = plan.contrast
     out = {"name": plan.cavity.name, "source": plan.cavity.source, "round_trip_time_s": c.round_trip_time,
@@ -279,7 +279,7 @@ def plot_png(plan, dpi: int = 120) -> bytes:
         ax.grid(True, which="major", alpha=0.3)
         ax.legend(fontsize=8, loc="upper left", bbox_to_anchor=(1.01, 1.0), borderaxespad=0.0)
     axes[-1, 0].set_xlabel("time from the main pulse (ns)")
-    from regentime.planning.plan import CAUTION_SHORT
+    from regentime.safety import CAUTION_SHORT
 
     fig.text(0.01, 0.005, CAUTION_SHORT, fontsize=6.5, wrap=True)
     fig.tight_layout(rect=(0, 0.04, 1, 1))

@@ -115,7 +115,7 @@ def _mode_lines(plan) -> list[str]:
 
 
 def _caution() -> str:
-    from regentime.planning.plan import CAUTION
+    from regentime.safety import CAUTION
 
     return CAUTION
 

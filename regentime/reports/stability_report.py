@@ -26,7 +26,7 @@ _AXIS_LABEL = {"rate": ("repetition rate", "Hz"), "seed": ("seed energy", "J"), 
 
 
 def _caution() -> str:
-    from regentime.planning.plan import CAUTION
+    from regentime.safety import CAUTION
 
     return CAUTION
 
@@ -246,7 +246,7 @@ def plot_stability(m, sweeps, path: str) -> None:
     """Period map (left) and the two bifurcation diagrams (right): outputs against rate at
     fixed N, and against N at fixed rate."""
     from regentime.reports.plots import _pyplot, save_figure
-    from regentime.planning.plan import CAUTION_SHORT
+    from regentime.safety import CAUTION_SHORT
 
     plt = _pyplot(path)
     from matplotlib.colors import BoundaryNorm, ListedColormap

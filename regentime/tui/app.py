@@ -24,7 +24,7 @@ from textual.worker import get_current_worker
 
 from regentime.errors import InputError, InputErrors, PlanError
 from regentime.fileformat.document import CavityDocument
-from regentime.planning.plan import CAUTION, CAUTION_SHORT
+from regentime.safety import CAUTION, CAUTION_SHORT
 from regentime.tui import view
 from regentime.tui.buildup_plot import BuildupPlot
 from regentime.tui.dialogs import KindScreen
