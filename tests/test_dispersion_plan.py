@@ -1,0 +1,32 @@
+"""Round-trip and switch-out dispersion of the Ti:sapphire demo cavity."""
+
+from pathlib import Path
+
+import pytest
+
+from regentime.fileformat import load_cavity
+from regentime.physics.gdd import material_dispersion
+from regentime.physics.optics import cavity_optics
+from regentime.planning.dispersion_plan import plan_dispersion
+
+TI = Path(__file__).resolve().parent.parent / "cavities" / "ti_sapphire_1khz.yaml"
+
+
+def test_ti_example_by_hand():
+    cav = load_cavity(str(TI))
+    res = plan_dispersion(cav, cavity_optics(cav), 11)
+    lam = 800e-9
+    # hand sum of the element list (file: 25 mm BBO cell, o; 20 mm Ti:sapphire, e;
+    # 1.61 m of air; the quartz waveplate and the polarizer have no thickness)
+    bbo = material_dispersion("bbo", lam, 25e-3, "o").gdd
+    sap = material_dispersion("sapphire", lam, 20e-3, "e").gdd
+    air_all = material_dispersion("air", lam, 1.61, "o").gdd
+    air_cell = material_dispersion("air", lam, 0.41, "o").gdd
+    assert bbo * 1e30 == pytest.approx(1800, rel=0.01)
+    assert sap * 1e30 == pytest.approx(1130, rel=0.01)
+    assert res.per_round_trip.gdd == pytest.approx(2 * (bbo + sap + air_all), rel=1e-9)
+    assert res.at_dump.gdd == pytest.approx(11 * 2 * (bbo + sap + air_all) + 2 * (bbo + air_cell),
+                                            rel=1e-9)
+    rows = res.by_round_trip()
+    assert [k for k, _ in rows] == [9, 10, 11, 12, 13]
+    assert rows[3][1].gdd - rows[2][1].gdd == pytest.approx(res.per_round_trip.gdd)
