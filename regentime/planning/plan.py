@@ -13,6 +13,7 @@ from regentime.model import Cavity
 from regentime.physics.optics import CavityOptics, cavity_optics
 from regentime.planning.buildup_plan import BuildupPlan, plan_buildup
 from regentime.planning.checks import Check, run_checks
+from regentime.planning.dispersion_plan import DispersionResult, plan_dispersion
 
 CAUTION = (
     "CAUTION: a regenerative amplifier is a Class 4 laser and its Pockels-cell driver switches "
@@ -37,6 +38,7 @@ class Plan:
     checks: list = field(default_factory=list)  # list[Check]
     cautions: list = field(default_factory=lambda: [CAUTION])
     stability: Optional[Any] = None  # continuous pump: nearest stable round trips etc.
+    dispersion: Optional[DispersionResult] = None  # GDD/TOD/FOD per element, round trip, switch-out
 
     @property
     def round_trip_time(self) -> float:
@@ -69,6 +71,7 @@ def make_plan(cavity: Cavity, dump: Union[str, int, None] = None) -> Plan:
     plan.timing.rows.extend(getattr(plan.contrast, "timing_rows", None) or ())  # cleaner gate, if any
     if cavity.pump.mode == "continuous":
         plan.stability = stability.plan_stability_note(cavity, optics, buildup)
+    plan.dispersion = plan_dispersion(cavity, optics, buildup.dump_round_trip)
     plan.checks = run_checks(plan)
     return plan
 
