@@ -30,3 +30,15 @@ def test_ti_example_by_hand():
     rows = res.by_round_trip()
     assert [k for k, _ in rows] == [9, 10, 11, 12, 13]
     assert rows[3][1].gdd - rows[2][1].gdd == pytest.approx(res.per_round_trip.gdd)
+
+
+def test_plan_json_has_dispersion_block():
+    import json
+    from regentime.planning.plan import make_plan
+    from regentime.reports.plan_json import plan_to_json
+    d = json.loads(plan_to_json(make_plan(load_cavity(str(TI)))))["dispersion"]
+    assert d["wavelength_m"] == pytest.approx(800e-9)
+    assert [r["round_trip"] for r in d["by_round_trip"]] == [9, 10, 11, 12, 13]
+    # 11 round trips + the exit cell-arm double pass, hand figures above (≈ 68,800 fs²)
+    assert d["at_dump"]["gdd_s2"] * 1e30 == pytest.approx(68806, rel=1e-3)
+    assert {"name", "kind", "material", "length_m", "gdd_s2", "tod_s3", "fod_s4"} <= set(d["elements"][2])

@@ -46,6 +46,18 @@ class DispersionResult:
     def at_dump(self) -> Dispersion:
         return self.after(self.dump_round_trip)
 
+    def to_dict(self) -> dict:
+        """The ``dispersion`` block of the plan JSON (SI; element figures per single pass)."""
+        def orders(d: Dispersion) -> dict:
+            return {"gdd_s2": d.gdd, "tod_s3": d.tod, "fod_s4": d.fod}
+        return {
+            "wavelength_m": self.wavelength_m,
+            "per_round_trip": orders(self.per_round_trip),
+            "at_dump": {"round_trip": self.dump_round_trip, **orders(self.at_dump)},
+            "elements": [dict(vars(e)) for e in self.elements],
+            "by_round_trip": [{"round_trip": k, **orders(d)} for k, d in self.by_round_trip()],
+        }
+
     def by_round_trip(self) -> list[tuple[int, Dispersion]]:
         n = self.dump_round_trip
         return [(k, self.after(k)) for k in range(max(1, n - 2), n + 3)]

@@ -97,6 +97,8 @@ def plan_to_dict(plan) -> dict:
         out["contrast"] = {"status": "not computed: contrast model not available in this build"}
     if plan.stability is not None and hasattr(plan.stability, "to_dict"):
         out["stability"] = plan.stability.to_dict()
+    if getattr(plan, "dispersion", None) is not None:
+        out["dispersion"] = plan.dispersion.to_dict()
     out["checks"] = [c.to_dict() for c in plan.checks]
     out["cannot_be_met"] = plan.cannot_be_met
     out["cautions"] = list(plan.cautions)
