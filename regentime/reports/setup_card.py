@@ -172,6 +172,10 @@ def setup_card_text(plan, when: Optional[_dt.datetime] = None) -> str:
     contrast = contrast_lines(plan)
     if contrast:
         lines += ["", "CONTRAST"] + [w for c in contrast for w in _wrap(c)]
+    from regentime.reports.dispersion_report import dispersion_lines
+    disp = dispersion_lines(plan)
+    if disp:
+        lines += ["", "DISPERSION"] + disp
     if plan.cannot_be_met:
         lines += ["", "THIS PLAN CANNOT BE MET AS IT STANDS: see the errors above."]
     lines += [""] + _wrap(_caution(), "")
