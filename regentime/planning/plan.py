@@ -22,6 +22,7 @@ from regentime.planning.self_lasing import SelfLasing, plan_self_lasing
 from regentime.planning.spectrum_plan import SpectrumResult, plan_spectrum
 from regentime.planning.ase_plan import AseResult, plan_ase
 from regentime.plan_views import PlanViews  # notebook views; reports imported only when called
+from regentime.planning.dispersion_plan import DispersionResult, plan_dispersion
 
 from regentime.safety import CAUTION, CAUTION_SHORT
 
@@ -48,6 +49,7 @@ class Plan(PlanViews):
     self_lasing: Optional[SelfLasing] = None  # does the closed cavity lase by itself
     spectrum: Optional[SpectrumResult] = None  # with seed.bandwidth: gain narrowing and shift
     ase: Optional[AseResult] = None  # spontaneous emission leaving with the pulse
+    dispersion: Optional[DispersionResult] = None  # GDD/TOD/FOD per element, round trip, switch-out
 
     @property
     def round_trip_time(self) -> float:
@@ -85,10 +87,12 @@ def make_plan(cavity: Cavity, dump: Union[DumpRule, str, int, None] = None) -> P
     self_lasing = plan_self_lasing(cavity, optics, buildup)
     spectrum = plan_spectrum(cavity, buildup)
     ase = plan_ase(cavity, buildup)
+    dispersion = plan_dispersion(cavity, optics, buildup.dump_round_trip)
     checks = run_checks(cavity, buildup, (switch_plan, timing, contrast, stability, mode, self_lasing),
                         stability)
     return Plan(cavity, optics, buildup, switch_plan, timing, contrast, tuple(checks), stability,
-                cavity_mode=mode, self_lasing=self_lasing, spectrum=spectrum, ase=ase)
+                cavity_mode=mode, self_lasing=self_lasing, spectrum=spectrum, ase=ase,
+                dispersion=dispersion)
 
 
 __all__ = ["Plan", "make_plan", "Check", "DumpRule", "CAUTION", "CAUTION_SHORT"]

@@ -107,6 +107,8 @@ def plan_to_dict(plan) -> dict:
         out["spectrum"] = plan.spectrum.to_dict()
     if plan.ase is not None:
         out["ase"] = plan.ase.to_dict()
+    if plan.dispersion is not None:
+        out["dispersion"] = plan.dispersion.to_dict()
     out["checks"] = [c.to_dict() for c in plan.checks]
     out["cannot_be_met"] = plan.cannot_be_met
     out["cautions"] = list(plan.cautions)

@@ -172,6 +172,11 @@ def setup_card_text(plan, when: Optional[_dt.datetime] = None) -> str:
     from regentime.reports.spectrum_report import spectrum_lines
 
     lines += ["", "SELF-LASING, SPECTRUM, ASE"] + [w for c in spectrum_lines(plan) for w in _wrap(c)]
+    from regentime.reports.dispersion_report import dispersion_lines
+
+    disp = dispersion_lines(plan)
+    if disp:
+        lines += ["", "DISPERSION"] + disp
     if plan.cannot_be_met:
         lines += ["", "THIS PLAN CANNOT BE MET AS IT STANDS: see the errors above."]
     lines += [""] + _wrap(_caution(), "")
