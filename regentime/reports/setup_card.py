@@ -21,6 +21,8 @@ _DRIVES = {"pump": "pump laser", "switch_on": "cell switch-on", "switch_off": "c
 def _ns(x: Optional[float]) -> str:
     if x is None or (isinstance(x, float) and math.isnan(x)):
         return "—"
+    if abs(x) >= 1e-6:  # bench times: µs from 1 µs up, ns below
+        return f"{x * 1e6:.4f} µs"
     return f"{x * 1e9:.3f} ns"
 
 
@@ -211,6 +213,13 @@ def timing_csv(plan) -> str:
     """The generator table as CSV (SI seconds)."""
     head = ["output", "drives", "delay_s", "width_s", "event_s", "latency_s", "cable_delay_s",
             "rounding_s", "problem", "note"]
-    rows = [[r.output, r.drives, r.delay, r.width, r.event, r.latency, r.cable_delay, r.rounding,
-             r.problem or "", r.note] for r in (plan.timing.rows if plan.timing else [])]
+    step = plan.cavity.generator.resolution or 1e-12  # rounded to the generator step (1 ps if none)
+    digits = max(0, -math.floor(math.log10(step)) + 1)
+
+    def num(x):
+        return None if x is None else float(f"{round(x / step) * step:.{digits}f}")
+
+    rows = [[r.output, r.drives, num(r.delay), num(r.width), num(r.event), num(r.latency),
+             num(r.cable_delay), r.rounding, r.problem or "", r.note]
+            for r in (plan.timing.rows if plan.timing else [])]
     return csv_table(head, rows)
