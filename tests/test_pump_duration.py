@@ -51,3 +51,15 @@ def test_insertion_delay_and_pump_width():
     assert pump.width == pytest.approx(500e-6)
     # pump start = seed arrival − lead − T_p
     assert pump.event == pytest.approx(base.timing.seed_time - 0.0 - 500e-6, abs=1e-12)
+
+
+def test_card_lines_nd_ylf():
+    # exact bench-card rows for the shipped Nd:YLF example (outputs order, µs from 1 µs up)
+    from regentime.commands.loading import load
+    from regentime.planning.plan import make_plan
+    from regentime.reports.setup_card import setup_card_text
+
+    text = setup_card_text(make_plan(load("cavities/nd_ylf_ps_10hz.yaml")))
+    assert "  out1    cell switch-on   519.9627 µs            —  520.0328 µs  ok" in text
+    assert "  out3    pump laser         12.338 ns  500.0000 µs   20.0275 µs  ok" in text
+    assert text.index("  out1    cell switch-on") < text.index("  out3    pump laser")

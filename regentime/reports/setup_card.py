@@ -62,11 +62,18 @@ def key_lines(plan) -> list[str]:
 
 def table_rows(plan) -> list[list[str]]:
     rows = []
-    for r in plan.timing.rows:
+    for r in ordered_rows(plan):
         rows.append([r.output, _DRIVES.get(r.drives, r.drives), _ns(r.delay),
                      _ns(r.width) if r.width is not None else "—", _ns(r.event),
                      "CANNOT BE MET" if r.problem else "ok"])
     return rows
+
+
+def ordered_rows(plan) -> list:
+    """The generator rows in the order of the user's ``outputs:`` (rows not named there last)."""
+    order = list(plan.cavity.outputs)
+    rows = list(plan.timing.rows)
+    return sorted(rows, key=lambda r: order.index(r.drives) if r.drives in order else len(order))
 
 
 TABLE_HEAD = ["output", "drives", "delay", "width", "event at", "status"]  # public: the TUI shows the same table
@@ -133,9 +140,14 @@ def _assumptions(plan) -> list[str]:
                "cable length/(velocity factor · c)")
     if cav.generator.resolution:
         out.append(f"delays rounded to the generator step of {cav.generator.resolution * 1e12:.4g} ps")
+    if cav.generator.insertion_delay:
+        out.append(f"generator insertion delay {_ns(cav.generator.insertion_delay)} subtracted from "
+                   "every channel")
     if cav.pump.mode == "pulsed":
-        out.append(f"pump light leads the seed pulse by {cav.pump.lead * 1e9:.4g} ns "
-                   f"(pump latency {_ns(cav.pump.latency)})")
+        width = (f"; pump pulse {_ns(cav.pump.duration)} long, the pump channel fires its start"
+                 if cav.pump.duration else "; instantaneous pump pulse")
+        out.append(f"pump light ends {_ns(cav.pump.lead)} before the seed pulse "
+                   f"(pump latency {_ns(cav.pump.latency)}{width})")
     else:
         out.append("continuous pump: no pump channel")
     return out
@@ -159,7 +171,7 @@ def setup_card_text(plan, when: Optional[_dt.datetime] = None) -> str:
         lines += ["", "DELAY GENERATOR (time zero = trigger input" +
                   (f"; rounded to {res * 1e12:.4g} ps)" if res else ")"),
                   text_table(TABLE_HEAD, table_rows(plan), align="llrrrl"), ""]
-        for r in plan.timing.rows:
+        for r in ordered_rows(plan):
             lines += _wrap(f"{r.output}: {r.note}")
             if r.problem:
                 lines += _wrap(f"{r.output}: CANNOT BE MET: {r.problem}")
