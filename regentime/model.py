@@ -62,6 +62,7 @@ class Pump:
     power: Optional[float] = None  # W (continuous)
     lead: float = 0.0  # s, seed injection after the pump light (pulsed)
     latency: float = 0.0  # s, pump trigger input to light out (pulsed)
+    duration: float = 0.0  # s, rectangular pump pulse length (pulsed); 0 = instantaneous
 
 
 # ----- cavity elements -------------------------------------------------------------------
@@ -262,6 +263,7 @@ class Cable:
 @dataclass(frozen=True)
 class Generator:
     resolution: Optional[float] = None  # s; None: no rounding
+    insertion_delay: float = 0.0  # s, trigger input to the first output edge at zero delay
 
 
 @dataclass(frozen=True)

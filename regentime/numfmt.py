@@ -49,6 +49,17 @@ def ns(value: Any, decimals: int = 3) -> str:
     return "—" if v is None else f"{v * 1e9:.{decimals}f} ns"
 
 
+def bench_time(value: Any) -> str:
+    """A time (s) as a technician sets it on a delay generator: from 1 µs up in µs with 4
+    decimals (``339.9345 µs``), below in ns with 3 decimals (``389.439 ns``); None/NaN -> ``—``."""
+    v = finite_or_none(value)
+    if v is None:
+        return "—"
+    if abs(v) >= 1e-6:
+        return f"{v * 1e6:.4f} µs"
+    return f"{v * 1e9:.3f} ns"
+
+
 def finite_or_none(value: Any) -> Optional[float]:
     """``float(value)`` when it is a finite number, else ``None`` (also for non-numbers)."""
     try:
@@ -64,4 +75,4 @@ def json_float(value: float) -> Optional[float]:
     return v if math.isfinite(v) else None
 
 
-__all__ = ["eng", "ns", "finite_or_none", "json_float"]
+__all__ = ["bench_time", "eng", "ns", "finite_or_none", "json_float"]

@@ -121,7 +121,7 @@ def _rules(ck: Checker, data, top: dict, elements: list) -> None:
     if isinstance(pump, dict) and isinstance(praw, dict) and "mode" in pump:
         pulsed = pump["mode"] == "pulsed"
         need = ("energy", "lead") if pulsed else ("power",)
-        refuse = ("power",) if pulsed else ("energy", "lead", "latency")
+        refuse = ("power",) if pulsed else ("energy", "lead", "latency", "duration")
         for key in need:
             if key not in praw:
                 ck.err(f"pump.{key}", MISSING, f"{check_spec('pump', key).expected()} "
@@ -239,7 +239,8 @@ def _build(ck: Checker, data, top: dict, elements: list, source, default_name) -
         pump=m.Pump(mode=pump["mode"], wavelength=pump["wavelength"],
                     absorbed_fraction=pump["absorbed_fraction"], overlap=pump.get("overlap", 1.0),
                     energy=pump.get("energy"), power=pump.get("power"),
-                    lead=pump.get("lead", 0.0), latency=pump.get("latency", 0.0)),
+                    lead=pump.get("lead", 0.0), latency=pump.get("latency", 0.0),
+                    duration=pump.get("duration", 0.0)),
         elements=_elements_model(elements, air),
         switch=m.Switch(scheme=switch["scheme"], rise_time=switch["rise_time"],
                         fall_time=switch.get("fall_time", switch["rise_time"]),
@@ -252,7 +253,8 @@ def _build(ck: Checker, data, top: dict, elements: list, source, default_name) -
         cables=_cables(top),
         outputs=_outputs(top),
         dump=m.DumpRule.of(top.get("dump", "auto")),
-        generator=m.Generator(resolution=(top.get("generator") or {}).get("resolution")),
+        generator=m.Generator(resolution=(top.get("generator") or {}).get("resolution"),
+                              insertion_delay=(top.get("generator") or {}).get("insertion_delay", 0.0)),
         scope=m.Scope(lead=(top.get("scope") or {}).get("lead")),
         cleaner=None,
         checks=m.Checks(**{k: v for k, v in (top.get("checks") or {}).items()}),

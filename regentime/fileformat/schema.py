@@ -340,6 +340,8 @@ TOP = Section("", "top level", _fields(
            "there)", lo=0.0, hi=10e-3),
         _f("latency", "time", "pump trigger input to light out (pulsed)", default="0 s",
            lo=0.0, hi=10e-3),
+        _f("duration", "time", "length of the rectangular pump pulse, ending 'lead' before the "
+           "seed (pulsed); 0 = instantaneous", default="0 s", lo=0.0, hi=10e-3),
     ), required=True),
     "switch": Section("switch", "the Pockels-cell high-voltage driver", _fields(
         _f("scheme", "choice", "quarter-wave (cell + waveplate) or half-wave (cell alone)",
@@ -369,6 +371,8 @@ TOP = Section("", "top level", _fields(
     "generator": Section("generator", "the delay generator", _fields(
         _f("resolution", "time", "delay step; delays are rounded to it", default="none",
            lo=0.0, hi=1e-6, lo_open=True),
+        _f("insertion_delay", "time", "trigger input to the first output edge at zero delay; "
+           "subtracted from every channel", default="0 s", lo=0.0, hi=10e-6),
     )),
     "scope": Section("scope", "the oscilloscope trigger", _fields(
         _f("lead", "time", "scope trigger this long before the switch-out",

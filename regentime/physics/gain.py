@@ -37,16 +37,25 @@ def transparency_fluence(j_sat: float, sigma_a: float, doping_density: float, le
 
 
 def pulsed_stored_energy(pump_energy: float, absorbed_fraction: float, overlap: float,
-                         pump_wavelength: float, wavelength: float, lead: float, tau: float) -> float:
+                         pump_wavelength: float, wavelength: float, lead: float, tau: float,
+                         duration: float = 0.0) -> float:
     """Stored energy at seed injection for a pulsed pump, J (in laser photons).
 
-    E_st = E_pump · η_abs · η_overlap · (λ_pump/λ) · exp(−lead/τ)
+    A rectangular pump pulse of length T_p fills the upper state at the rate
+    R = E_pump · η_abs · η_overlap · (λ_pump/λ) / T_p while it decays with τ
+    (dE/dt = R − E/τ, E(0) = 0), so at the pump's end E = R τ (1 − e^{−T_p/τ}); then it decays
+    over ``lead`` (pump end to seed):  E_st = R τ (1 − e^{−T_p/τ}) · e^{−lead/τ}.
+    T_p → 0 gives E_pump · η_abs · η_overlap · (λ_pump/λ) · e^{−lead/τ}.
 
-    E_pump in J, wavelengths in m, lead and upper-state lifetime τ in s.  Valid when the pump
-    pulse is short compared with τ (the decay during the pump pulse is neglected).
-    Reference: docs/definitions.md "Gain"; Koechner ch. 3 (quantum defect λ_p/λ).
+    E_pump in J, wavelengths in m, lead, duration T_p and upper-state lifetime τ in s
+    (T_p ≥ 0, lead ≥ 0).  No pump bleaching or ground-state depletion.
+    Reference: the rate equation of a four-level medium, Koechner, Solid-State Laser
+    Engineering, ch. 3 (quantum defect λ_p/λ, storage efficiency of a pump pulse).
     """
-    return pump_energy * absorbed_fraction * overlap * (pump_wavelength / wavelength) * np.exp(-lead / tau)
+    e0 = pump_energy * absorbed_fraction * overlap * (pump_wavelength / wavelength)
+    x = duration / tau
+    storage = 1.0 if x == 0 else float(-np.expm1(-x) / x)
+    return e0 * storage * np.exp(-lead / tau)
 
 
 def continuous_pump_rate(power: float, absorbed_fraction: float, overlap: float,

@@ -39,7 +39,7 @@ def gain_model(cavity: Cavity, pump_scale: float = 1.0) -> GainModel:
     tau = m.upper_state_lifetime
     if p.mode == "pulsed":
         stored = pulsed_stored_energy(p.energy * pump_scale, p.absorbed_fraction, p.overlap,
-                                      p.wavelength, lam, p.lead, tau)
+                                      p.wavelength, lam, p.lead, tau, p.duration)
         rate = 0.0
     else:
         rate = continuous_pump_rate(p.power * pump_scale, p.absorbed_fraction, p.overlap, p.wavelength, lam)

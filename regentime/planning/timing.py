@@ -104,7 +104,8 @@ def _channels(cavity: Cavity, on_rel: float, off_rel: float, n: int, t_rt: float
     out = []
     if cavity.pump.mode == "pulsed":
         d, text = cable_delay(cavity, "pump")
-        out.append(_Channel("pump", -cavity.pump.lead, cavity.pump.latency, d, text, "pump laser"))
+        out.append(_Channel("pump", -cavity.pump.lead - cavity.pump.duration, cavity.pump.latency, d,
+                            text, "pump laser"))
     if s.inputs == "gate":
         d, text = cable_delay(cavity, "gate")
         out.append(_Channel("gate", on_rel, s.on_latency, d, text, "cell driver gate"))
@@ -126,7 +127,8 @@ def choose_seed_pulse(cavity: Cavity, on_rel: float, off_rel: float, n: int,
     so m = max(0, ⌈(max_i(−c_i) − arrival)·train_rate⌉).
     """
     seed = cavity.seed
-    need = max(ch.latency + ch.cable - ch.event_rel for ch in _channels(cavity, on_rel, off_rel, n, t_rt))
+    ins = cavity.generator.insertion_delay
+    need = max(ch.latency + ch.cable + ins - ch.event_rel for ch in _channels(cavity, on_rel, off_rel, n, t_rt))
     m = max(0, math.ceil((need - seed.arrival) * seed.train_rate - 1e-9))
     t_m = seed.arrival + m / seed.train_rate
     while t_m < need - _EPS:  # guard against rounding in the ceil
@@ -166,7 +168,7 @@ def timing_table(cavity: Cavity, optics: CavityOptics, buildup, switching) -> Ti
 
     for ch in _channels(cavity, sp.on_edge_rel, sp.off_edge_rel, n, t_rt):
         event = t_m + ch.event_rel
-        exact = event - ch.latency - ch.cable
+        exact = event - ch.latency - ch.cable - cavity.generator.insertion_delay
         delay = _round(exact, res)
         width = None
         problem = None
@@ -174,6 +176,10 @@ def timing_table(cavity: Cavity, optics: CavityOptics, buildup, switching) -> Ti
         if ch.drives == "pump":
             parts.append(f"pump light at {ns(event)}, {_eng(cavity.pump.lead)} before {seed_text}; "
                          f"latency {ns(ch.latency)}")
+            if cavity.pump.duration > 0:
+                width = cavity.pump.duration
+                parts.append(f"pump pulse {_eng(width)} long, from its start to {_eng(cavity.pump.lead)} "
+                             "before the seed")
         elif ch.drives in ("switch_on", "gate"):
             parts.append(f"switch-on edge (50 %) at the cell {ns(event)}; "
                          + window_text(sp.on_window, sp.on_edge) + f"; {seed_text}; latency {ns(ch.latency)}")
@@ -198,6 +204,8 @@ def timing_table(cavity: Cavity, optics: CavityOptics, buildup, switching) -> Ti
             elif sp.off_window is None:
                 problem = "no switch-on or switch-off window (see checks)"
         parts.append(ch.cable_text)
+        if cavity.generator.insertion_delay:
+            parts.append(f"generator insertion delay {ns(cavity.generator.insertion_delay)} subtracted")
         rounding = delay - exact
         hard = []  # problems that the switching checks have not reported already
         if res:

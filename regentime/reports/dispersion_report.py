@@ -4,7 +4,7 @@ from __future__ import annotations
 
 
 def dispersion_lines(plan) -> list[str]:
-    d = getattr(plan, "dispersion", None)
+    d = plan.dispersion
     if d is None:
         return []
     lines = [f"  at {d.wavelength_m * 1e9:.1f} nm; elements per single pass, crossed twice per round trip"]

@@ -12,7 +12,7 @@ import datetime as _dt
 import math
 from typing import Optional
 
-from regentime.numfmt import eng, ns
+from regentime.numfmt import bench_time, eng, ns
 from regentime.reports.contrast_report import contrast_summary_lines
 from regentime.reports.tables import csv_table, md_table, text_table
 
@@ -56,11 +56,18 @@ def key_lines(plan) -> list[str]:
 
 def table_rows(plan) -> list[list[str]]:
     rows = []
-    for r in plan.timing.rows:
-        rows.append([r.output, _DRIVES.get(r.drives, r.drives), ns(r.delay),
-                     ns(r.width) if r.width is not None else "—", ns(r.event),
+    for r in ordered_rows(plan):
+        rows.append([r.output, _DRIVES.get(r.drives, r.drives), bench_time(r.delay),
+                     bench_time(r.width) if r.width is not None else "—", bench_time(r.event),
                      "CANNOT BE MET" if r.problem else "ok"])
     return rows
+
+
+def ordered_rows(plan) -> list:
+    """The generator rows in the order of the user's ``outputs:`` (rows not named there last)."""
+    order = list(plan.cavity.outputs)
+    rows = list(plan.timing.rows)
+    return sorted(rows, key=lambda r: order.index(r.drives) if r.drives in order else len(order))
 
 
 TABLE_HEAD = ["output", "drives", "delay", "width", "event at", "status"]  # public: the TUI shows the same table
@@ -127,9 +134,14 @@ def _assumptions(plan) -> list[str]:
                "cable length/(velocity factor · c)")
     if cav.generator.resolution:
         out.append(f"delays rounded to the generator step of {cav.generator.resolution * 1e12:.4g} ps")
+    if cav.generator.insertion_delay:
+        out.append(f"generator insertion delay {bench_time(cav.generator.insertion_delay)} subtracted from "
+                   "every channel")
     if cav.pump.mode == "pulsed":
-        out.append(f"pump light leads the seed pulse by {cav.pump.lead * 1e9:.4g} ns "
-                   f"(pump latency {ns(cav.pump.latency)})")
+        width = (f"; pump pulse {bench_time(cav.pump.duration)} long, the pump channel fires its start"
+                 if cav.pump.duration else "; instantaneous pump pulse")
+        out.append(f"pump light ends {bench_time(cav.pump.lead)} before the seed pulse "
+                   f"(pump latency {bench_time(cav.pump.latency)}{width})")
     else:
         out.append("continuous pump: no pump channel")
     return out
@@ -153,7 +165,7 @@ def setup_card_text(plan, when: Optional[_dt.datetime] = None) -> str:
         lines += ["", "DELAY GENERATOR (time zero = trigger input" +
                   (f"; rounded to {res * 1e12:.4g} ps)" if res else ")"),
                   text_table(TABLE_HEAD, table_rows(plan), align="llrrrl"), ""]
-        for r in plan.timing.rows:
+        for r in ordered_rows(plan):
             lines += _wrap(f"{r.output}: {r.note}")
             if r.problem:
                 lines += _wrap(f"{r.output}: CANNOT BE MET: {r.problem}")
@@ -217,6 +229,13 @@ def timing_csv(plan) -> str:
     """The generator table as CSV (SI seconds)."""
     head = ["output", "drives", "delay_s", "width_s", "event_s", "latency_s", "cable_delay_s",
             "rounding_s", "problem", "note"]
-    rows = [[r.output, r.drives, r.delay, r.width, r.event, r.latency, r.cable_delay, r.rounding,
-             r.problem or "", r.note] for r in (plan.timing.rows if plan.timing else [])]
+    step = plan.cavity.generator.resolution or 1e-12  # rounded to the generator step (1 ps if none)
+    digits = max(0, -math.floor(math.log10(step)) + 1)
+
+    def num(x):
+        return None if x is None else float(f"{round(x / step) * step:.{digits}f}")
+
+    rows = [[r.output, r.drives, num(r.delay), num(r.width), num(r.event), num(r.latency),
+             num(r.cable_delay), r.rounding, r.problem or "", r.note]
+            for r in (plan.timing.rows if plan.timing else [])]
     return csv_table(head, rows)
