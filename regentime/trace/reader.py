@@ -32,14 +32,14 @@ import os
 import re
 import sys
 from dataclasses import dataclass, field
-from typing import Optional, Sequence
+from typing import Optional
 
 import numpy as np
 
 from regentime.errors import InputError
 from regentime.trace.source_checks import check_finite_channel, check_trace_path
+from regentime.trace.sniff import NUM_COMMA_RE, NUM_RE, SNIFF_BYTES, Sniff, sniff, split_fields
 
-_SNIFF_BYTES = 1 << 16  # enough for any preamble a scope writes, and a few hundred data lines
 _CHUNK_BYTES = 1 << 23  # 8 MiB of text per parse job: bounded scratch memory, few jobs
 _PARALLEL_MIN_BYTES = 1 << 26  # below 64 MiB forking costs more than it saves
 # below 32 MiB of numbers, importing pandas (~0.2 s) costs more than its faster parse saves
@@ -50,17 +50,10 @@ _MIN_SAMPLES = 16
 TIME_UNITS = {"s": 1.0, "sec": 1.0, "secs": 1.0, "second": 1.0, "seconds": 1.0,
               "ms": 1e-3, "us": 1e-6, "\u00b5s": 1e-6, "\u03bcs": 1e-6, "ns": 1e-9, "ps": 1e-12}
 
-_NUM = r"[+-]?(?:(?:\d+(?:[.]\d*)?|[.]\d+)(?:[eE][+-]?\d+)?|nan|NaN|NAN|inf|Inf|INF|infinity|Infinity)"
-_NUM_RE = re.compile(rf"^{_NUM}$")
-_NUM_COMMA_RE = re.compile(r"^[+-]?(?:\d+(?:,\d*)?|,\d+)(?:[eE][+-]?\d+)?$")
 _UNIT_IN_NAME = re.compile(
     r"(?:[\(\[{]\s*(?P<a>[a-zA-Z\u00b5\u03bc]+)\s*[\)\]}]"  # Time (ms), t[ns], {us}
     r"|[/_ -](?P<b>[a-zA-Z\u00b5\u03bc]+)\s*$"  # time/ns, time_us, "time ns"
     r"|^(?P<c>[a-zA-Z\u00b5\u03bc]+)$)"  # a bare unit as the column name: "s"
-)
-_UNIT_META = re.compile(
-    r"(?:time|x|horizontal|h)[ _-]*units?\s*[:=,;\t ]\s*\(?(?P<u>[a-zA-Z\u00b5\u03bc]+)\)?",
-    re.IGNORECASE,
 )
 _TIME_NAMES = re.compile(r"^(?:t|time|x|times?)(?:[ _/-]?(?:s|ms|us|\u00b5s|\u03bcs|ns|ps))?$", re.I)
 _PD_NAMES = re.compile(r"photo|diode|\bpd\b|^pd", re.I)
@@ -130,123 +123,14 @@ def read_trace(path: str, channel: Optional[str] = None, workers: Optional[int] 
 # ----- text --------------------------------------------------------------------------------
 
 
-@dataclass
-class _Sniff:
-    delimiter: Optional[str]  # None: whitespace
-    decimal_comma: bool
-    ncols: int
-    data_line: int  # 0-based index of the first data line
-    data_offset: int  # byte offset of the first data line
-    names: list
-    units: dict  # "time_meta" -> unit from metadata, "row" -> list of units row
-    preamble: int  # number of lines before the data
-
-
-def _split(line: str, delim: Optional[str]) -> list:
-    if delim is None:
-        return line.split()
-    return [f.strip() for f in line.split(delim)]
-
-
-def _numeric(fields: Sequence[str], comma: bool) -> bool:
-    pat = _NUM_COMMA_RE if comma else _NUM_RE
-    return all(f and (pat.match(f) or _NUM_RE.match(f)) for f in fields)
-
-
-def _line_layout(line: str) -> Optional[tuple]:
-    """(delimiter, decimal_comma, nfields) if the line is all numbers, else None."""
-    text = line.strip()
-    if not text:
-        return None
-    if text[-1] in ",;" and len(text) > 1:  # a trailing delimiter (some exporters end rows so)
-        text = text[:-1].rstrip()
-    for delim in ("\t", ";"):
-        if delim in text:
-            f = _split(text, delim)
-            if len(f) >= 2 and _numeric(f, comma=False):
-                return delim, False, len(f)
-            if len(f) >= 2 and _numeric(f, comma=True):
-                return delim, any("," in x for x in f), len(f)
-            return None
-    if "," in text:
-        f = _split(text, ",")
-        if len(f) >= 2 and _numeric(f, comma=False):
-            return ",", False, len(f)
-        f = text.split()
-        if len(f) >= 2 and _numeric(f, comma=True):
-            return None, True, len(f)
-        return None
-    f = text.split()
-    if len(f) >= 2 and _numeric(f, comma=False):
-        return None, False, len(f)
-    return None
-
-
-def _sniff(path: str, head: bytes) -> _Sniff:
-    text = head.decode("utf-8", errors="replace")
-    if text.startswith("\ufeff"):
-        text = text[1:]
-    lines = text.split("\n")
-    if len(head) >= _SNIFF_BYTES and len(lines) > 1:
-        lines = lines[:-1]  # the last one may be cut
-    if not any(l.strip() for l in lines):
-        raise InputError("", "(empty)", "a trace: a time column and at least one signal column",
-                         source=path)
-    layouts = [_line_layout(l) for l in lines]
-    start = None
-    for i, lay in enumerate(layouts):
-        if lay is None:
-            continue
-        nxt = [layouts[j] for j in range(i, min(len(lines), i + 6)) if lines[j].strip()]
-        if all(x == lay for x in nxt):
-            start = i
-            break
-    if start is None:
-        bad = next((i for i, l in enumerate(lines) if l.strip()), 0)
-        raise InputError("", lines[bad].strip()[:40] if lines else "",
-                         "numbers: a time column and at least one signal column, separated by "
-                         "commas, semicolons, tabs or spaces (no numeric rows found in the first "
-                         f"{len(lines)} lines)", line=bad + 1, source=path)
-    delim, comma, ncols = layouts[start]
-    names: list = []
-    units: dict = {}
-    for l in lines[:start]:
-        m = _UNIT_META.search(l)
-        if m:
-            units["time_meta"] = m.group("u")
-    pre = [l.strip() for l in lines[:start] if l.strip()]
-    hdr = [_split(l, delim) for l in pre]
-    hdr = [[x.strip().strip('"').strip("'") for x in h] for h in hdr]
-    hdr = [h[:-1] if len(h) > 1 and h[-1] == "" else h for h in hdr]  # trailing delimiter
-    matching = [h for h in hdr if len(h) == ncols]
-    if matching:
-        last = matching[-1]
-        if all(re.fullmatch(r"[\(\[]?\s*[a-zA-Z\u00b5\u03bc/%]*\s*[\)\]]?", x) for x in last) and len(matching) > 1:
-            units["row"] = [x.strip("()[] ") for x in last]
-            names = matching[-2]
-        else:
-            names = last
-    if not names or len(set(names)) != len(names) or any(not n for n in names):
-        names = ["time"] + [f"column {k}" for k in range(2, ncols + 1)]
-    offset = _byte_offset_of_line(head, start)
-    return _Sniff(delim, comma, ncols, start, offset, names, units, start)
-
-
-def _byte_offset_of_line(head: bytes, line: int) -> int:
-    pos = 3 if head.startswith(b"\xef\xbb\xbf") else 0  # skip a UTF-8 byte-order mark
-    for _ in range(line):
-        pos = head.index(b"\n", pos) + 1
-    return pos
-
-
 def _read_text(path: str, workers: Optional[int], parser: str = "auto"):
     size = os.path.getsize(path)
     if size == 0:
         raise InputError("", "(empty file)", "a trace: a time column and at least one signal column",
                          source=path)
     with open(path, "rb") as fh:
-        head = fh.read(_SNIFF_BYTES)
-    sn = _sniff(path, head)
+        head = fh.read(SNIFF_BYTES)
+    sn = sniff(path, head)
     desc = {",": "comma", ";": "semicolon", "\t": "tab", None: "whitespace"}[sn.delimiter]
     layout = f"{desc}-separated" + (", decimal comma" if sn.decimal_comma else "") + \
         f", {sn.ncols} columns, {sn.preamble} line(s) before the data"
@@ -273,7 +157,7 @@ def _pandas_imported() -> bool:
     return "pandas" in sys.modules
 
 
-def _read_text_numpy(path: str, sn: _Sniff, size: int, workers: Optional[int]) -> np.ndarray:
+def _read_text_numpy(path: str, sn: Sniff, size: int, workers: Optional[int]) -> np.ndarray:
     """The exact path: numpy's C reader chunk by chunk; errors name the line."""
     jobs = _plan_chunks(path, sn.data_offset, size)
     rows_total = sum(j[2] for j in jobs)
@@ -357,7 +241,7 @@ def _workers(workers: Optional[int], size: int, njobs: int) -> int:
     return max(1, min(os.cpu_count() or 1, 8, njobs))
 
 
-def _parse_job(path: str, sn: _Sniff, job: tuple, out: np.ndarray):
+def _parse_job(path: str, sn: Sniff, job: tuple, out: np.ndarray):
     """Parse one chunk into ``out``; return None or (line_hint, message) on failure."""
     import warnings
 
@@ -389,7 +273,7 @@ def _parse_job(path: str, sn: _Sniff, job: tuple, out: np.ndarray):
     return None
 
 
-def _parse_parallel(path: str, sn: _Sniff, jobs: list, out: np.ndarray, nworkers: int) -> None:
+def _parse_parallel(path: str, sn: Sniff, jobs: list, out: np.ndarray, nworkers: int) -> None:
     import multiprocessing as mp
 
     ctx = mp.get_context("fork")
@@ -428,7 +312,7 @@ def _worker(path, sn, group, out, conn) -> None:  # pragma: no cover - runs in a
     os._exit(0)
 
 
-def _job_error(path: str, sn: _Sniff, err: tuple) -> InputError:
+def _job_error(path: str, sn: Sniff, err: tuple) -> InputError:
     """Find the exact line that broke a chunk (error path only: a plain line scan)."""
     line0 = err[0]
     with open(path, "rb") as fh:
@@ -443,18 +327,18 @@ def _job_error(path: str, sn: _Sniff, err: tuple) -> InputError:
                 continue
             if sn.delimiter and text.endswith(sn.delimiter) and len(text) > 1:
                 text = text[:-1].rstrip()
-            fields = _split(text, sn.delimiter)
+            fields = split_fields(text, sn.delimiter)
             if len(fields) != sn.ncols:
                 return InputError("", text[:60], f"{sn.ncols} fields like the rows above "
                                   f"(found {len(fields)})", line=lineno, source=path)
             for k, f in enumerate(fields):
-                ok = _NUM_RE.match(f) or (sn.decimal_comma and _NUM_COMMA_RE.match(f))
+                ok = NUM_RE.match(f) or (sn.decimal_comma and NUM_COMMA_RE.match(f))
                 if not ok:
                     return InputError(f"column {k + 1}", f, "a number", line=lineno, source=path)
     return InputError("", err[1] or "unreadable data", "numeric rows", line=line0, source=path)
 
 
-def _check_finite(path: str, sn: _Sniff, out: np.ndarray, jobs: list) -> None:
+def _check_finite(path: str, sn: Sniff, out: np.ndarray, jobs: list) -> None:
     bad = ~np.isfinite(out)
     if not bad.any():
         return
