@@ -5,7 +5,7 @@ _regentime() {
     case ${COMP_WORDS[i]} in -*) ;; *) cmd=${COMP_WORDS[i]}; break ;; esac
   done
   if [[ -z $cmd ]]; then
-    COMPREPLY=($(compgen -W "plan buildup check contrast stability trace sweep materials tui -h --help --version -q --quiet -v --verbose --strict" -- "$cur")); return
+    COMPREPLY=($(compgen -W "plan buildup check contrast stability trace mode sweep materials tui -h --help --version -q --quiet -v --verbose --strict" -- "$cur")); return
   fi
   local opts=""
   case "$cmd:$prev" in
@@ -21,6 +21,8 @@ _regentime() {
     stability:-f) COMPREPLY=($(compgen -W "text json csv md" -- "$cur")); return ;;
     trace:--format) COMPREPLY=($(compgen -W "text json csv md" -- "$cur")); return ;;
     trace:-f) COMPREPLY=($(compgen -W "text json csv md" -- "$cur")); return ;;
+    mode:--format) COMPREPLY=($(compgen -W "text json" -- "$cur")); return ;;
+    mode:-f) COMPREPLY=($(compgen -W "text json" -- "$cur")); return ;;
     sweep:--format) COMPREPLY=($(compgen -W "text json csv md" -- "$cur")); return ;;
     sweep:-f) COMPREPLY=($(compgen -W "text json csv md" -- "$cur")); return ;;
     materials:--format) COMPREPLY=($(compgen -W "text json csv md" -- "$cur")); return ;;
@@ -33,6 +35,7 @@ _regentime() {
     contrast) opts="-h --help --target --span --dump --format -f --output -o --plot -q --quiet -v --verbose --strict" ;;
     stability) opts="-h --help --rates --round-trips --seed-energies --pump --ring-memory --pump-noise --seed-noise --random-seed --at --dump --no-progress --format -f --output -o --plot -q --quiet -v --verbose --strict" ;;
     trace) opts="-h --help --channel --injection-time --fit-seed --no-fit --format -f --output -o --plot -q --quiet -v --verbose --strict" ;;
+    mode) opts="-h --help --format -f --output -o --plot -q --quiet -v --verbose --strict" ;;
     sweep) opts="-h --help --dump --figure --outputs --workers --no-progress --format -f --output -o --plot -q --quiet -v --verbose --strict" ;;
     materials) opts="-h --help --format -f --output -o -q --quiet -v --verbose --strict" ;;
     tui) opts="-h --help -q --quiet -v --verbose --strict" ;;

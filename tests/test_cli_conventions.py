@@ -11,10 +11,11 @@ TI = str(ROOT / "cavities" / "ti_sapphire_1khz.yaml")
 
 
 def test_strict_turns_warnings_into_exit_3(capsys):
-    # the demo Ti:sapphire plan carries a damage warning (see its checks) and no error
-    assert main(["plan", TI]) == 0
-    assert main(["plan", TI, "--strict"]) == 3
-    assert main(["--strict", "check", TI]) == 3
+    # the Nd:YLF example carries warnings (B-integral above 1 rad, damage above half) and no error
+    ylf = str(ROOT / "cavities" / "nd_ylf_ps_10hz.yaml")
+    assert main(["plan", ylf]) == 0
+    assert main(["plan", ylf, "--strict"]) == 3
+    assert main(["--strict", "check", ylf]) == 3
     assert "strict" in capsys.readouterr().err
 
 

@@ -6,7 +6,7 @@ import pytest
 
 from regentime.fileformat import load_cavity
 from regentime.physics.gdd import material_dispersion
-from regentime.physics.optics import cavity_optics
+from regentime.planning.optics import cavity_optics
 from regentime.planning.dispersion_plan import plan_dispersion
 
 TI = Path(__file__).resolve().parent.parent / "cavities" / "ti_sapphire_1khz.yaml"
@@ -36,9 +36,17 @@ def test_plan_json_has_dispersion_block():
     import json
     from regentime.planning.plan import make_plan
     from regentime.reports.plan_json import plan_to_json
-    d = json.loads(plan_to_json(make_plan(load_cavity(str(TI)))))["dispersion"]
+    plan = make_plan(load_cavity(str(TI)))
+    n = plan.dump_round_trip
+    d = json.loads(plan_to_json(plan))["dispersion"]
     assert d["wavelength_m"] == pytest.approx(800e-9)
-    assert [r["round_trip"] for r in d["by_round_trip"]] == [9, 10, 11, 12, 13]
-    # 11 round trips + the exit cell-arm double pass, hand figures above (≈ 68,800 fs²)
-    assert d["at_dump"]["gdd_s2"] * 1e30 == pytest.approx(68806, rel=1e-3)
+    assert [r["round_trip"] for r in d["by_round_trip"]] == [n - 2, n - 1, n, n + 1, n + 2]
+    # N round trips + the exit cell-arm double pass, the hand sum of test_ti_example_by_hand
+    lam = 800e-9
+    bbo = material_dispersion("bbo", lam, 25e-3, "o").gdd
+    sap = material_dispersion("sapphire", lam, 20e-3, "e").gdd
+    air_all = material_dispersion("air", lam, 1.61, "o").gdd
+    air_cell = material_dispersion("air", lam, 0.41, "o").gdd
+    hand = n * 2 * (bbo + sap + air_all) + 2 * (bbo + air_cell)
+    assert d["at_dump"]["gdd_s2"] == pytest.approx(hand, rel=1e-9)
     assert {"name", "kind", "material", "length_m", "gdd_s2", "tod_s3", "fod_s4"} <= set(d["elements"][2])

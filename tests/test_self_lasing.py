@@ -12,9 +12,10 @@ from regentime.fileformat import load_cavity
 from regentime.physics import noise
 from regentime.planning.plan import make_plan
 from regentime.planning.self_lasing import closed_states
-from regentime.physics.optics import cavity_optics
+from regentime.planning.optics import cavity_optics
 
 ROOT = Path(__file__).resolve().parents[1] / "cavities"
+HALF_WAVE_CW = Path(__file__).resolve().parent / "cavities" / "yb_half_wave_cw.yaml"  # invented
 
 
 def test_photon_energy_against_scipy():
@@ -63,7 +64,7 @@ def test_noise_buildup_geometric_series_and_brute_force():
 
 def test_closed_states_from_jones():
     # half-wave scheme: both states keep P; quarter-wave: only the trapping state (Jones model)
-    for name, state in (("yb_100khz_cw.yaml", (True, True)), ("ti_sapphire_1khz.yaml", (False, True))):
+    for name, state in ((HALF_WAVE_CW, (True, True)), ("ti_sapphire_1khz.yaml", (False, True))):
         cav = load_cavity(ROOT / name)
         off, on, _, _ = closed_states(cav, cavity_optics(cav))
         assert (off, on) == state, name
@@ -75,7 +76,7 @@ def _self_lasing_levels(plan):
 
 def test_continuous_half_wave_lases():
     # a continuously pumped half-wave cavity is closed between shots: it must be flagged
-    plan = make_plan(load_cavity(ROOT / "yb_100khz_cw.yaml"))
+    plan = make_plan(load_cavity(HALF_WAVE_CW))
     sl = plan.self_lasing
     assert sl.closed_state == "both"
     assert sl.closed_round_trips > 0 and sl.noise_round_trips <= sl.closed_round_trips
