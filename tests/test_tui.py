@@ -494,7 +494,7 @@ async def test_gain_rows_show_the_library_values(cavity_file: Path) -> None:
         assert 2.8e-23 <= sigma <= 4.1e-23
         assert editor.row("gain.upper_state_lifetime").input.placeholder == "library: 3.2 µs"
         assert editor.row("seed.bandwidth").input.placeholder == "e.g. 30 nm"
-        assert editor.row("gain.pump_radius").input.placeholder == "default: 0.45 mm (= mode_radius)"
+        assert editor.row("gain.pump_radius").input.placeholder == "default: 0.66 mm (= mode_radius)"
         # another medium: the hints follow (Nd:YAG upper-state lifetime 230 µs, from memory:
         # W. Koechner, Solid-State Laser Engineering, Nd:YAG table)
         await type_into(app, pilot, "gain.material", "nd_yag")

@@ -16,7 +16,8 @@ R1  Round trip: unfold at the polarizer; cell arm out (end mirror reflected once
 R2  Gain: J_sat = h c/(λ (σ_e + σ_a)); J_tr = J_sat σ_a N_t L (the inversion at which
     σ_e N2 = σ_a N1, times h ν L); g = (J_st − J_tr)/J_sat; Frantz–Nodvik per crossing in
     log1p/expm1 (logaddexp) form; the stored fluence drops by J_out − J_in.
-R3  Pulsed pump: E_st = E_p η_abs η_ov (λ_p/λ) exp(−lead/τ), held during the build-up
+R3  Pulsed pump: E_st = E_p η_abs η_ov (λ_p/λ) exp(−lead/τ), held during the build-up; a pump
+    pulse of length T_p (ending `lead` before the seed) stores (τ/T_p)(1 − e^{−T_p/τ}) of it
     (the definitions give only its value at injection; no decay over the N round trips).
 R4  Continuous pump: recovery by T_rt after every round trip (the N-th included), then
     1/f − N T_rt between shots, so one period is exactly 1/f.  The final cell-arm double
@@ -202,7 +203,12 @@ class Reference:
         p = cav.pump
         q = p.absorbed_fraction * p.overlap * (p.wavelength / lam)
         if p.mode == "pulsed":
-            self.e_stored = p.energy * q * math.exp(-p.lead / self.tau)
+            # R3b: a rectangular pump pulse of length T_p ending `lead` before the seed stores
+            # (τ/T_p)(1 − e^{−T_p/τ}) of what an instantaneous pump stores (the rate equation
+            # dE/dt = R − E/τ integrated over the pulse; Koechner ch. 3)
+            tp = p.duration
+            share = 1.0 if tp == 0 else (self.tau / tp) * -math.expm1(-tp / self.tau)
+            self.e_stored = p.energy * q * share * math.exp(-p.lead / self.tau)
             self.rate = 0.0
         else:
             self.e_stored = None
@@ -693,8 +699,10 @@ def plan(cav, rings=64, carry=False, nmax=None, decay_pulsed=False, reset_profil
         base["switch_on"] = on_mid - sw.on_latency - cd("switch_on")
         base["switch_off"] = off_mid - sw.off_latency - cd("switch_off")
     if cav.pump.mode == "pulsed":
-        base["pump"] = -cav.pump.lead - cav.pump.latency - cd("pump")
+        base["pump"] = -cav.pump.lead - cav.pump.duration - cav.pump.latency - cd("pump")
     seed = cav.seed
+    # R10b: the generator's own insertion delay comes off every channel
+    base = {k: v - cav.generator.insertion_delay for k, v in base.items()}
     # delay(m) = arrival + m/train + base  >= 0
     need = max(-(seed.arrival + b_) * seed.train_rate for b_ in base.values())
     m = max(0, math.ceil(need - 1e-9))
