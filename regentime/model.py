@@ -246,6 +246,7 @@ class Switch:
     max_gate: float  # s
     edge: Literal["linear", "erf"] = "linear"
     inputs: Literal["separate", "gate"] = "separate"  # two trigger inputs, or one gate input
+    min_margin_sigma: float = 3.0  # a window margin below this many rms jitters is "marginal"
 
 
 @dataclass(frozen=True)

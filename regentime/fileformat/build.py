@@ -248,6 +248,7 @@ def _build(ck: Checker, data, top: dict, elements: list, source, default_name) -
                         off_latency=switch.get("off_latency", switch["on_latency"]),
                         jitter=switch.get("jitter", 0.0),
                         max_gate=switch.get("max_gate", math.inf),
+                        min_margin_sigma=switch.get("min_margin_sigma", 3.0),
                         edge=switch.get("edge", "linear"),
                         inputs=switch.get("inputs", "separate")),
         cables=_cables(top),

@@ -357,6 +357,8 @@ TOP = Section("", "top level", _fields(
            lo=0.0, hi=1e-6),
         _f("max_gate", "time", "longest gate the driver allows", default="no limit",
            lo=1e-9, hi=1.0),
+        _f("min_margin_sigma", "number", "window margin, in rms jitters, below which a row is marginal",
+           default="3 (common practice: 3 σ keeps 99.7 % of the shots inside)", lo=0.0, hi=100.0),
         _f("edge", "choice", "shape of the high-voltage edge", default="linear",
            choices=("linear", "erf")),
         _f("inputs", "choice", "separate on/off trigger inputs, or one gate input",

@@ -139,6 +139,7 @@ def _cleaner_row(cavity: Cavity, plan: CleanerPlan, cable_delay: float):
     if plan.delay < 0:
         problem = "negative delay: the main pulse reaches the cleaner before its latency and cable allow"
     return TimingRow(output=cl.output, drives="cleaner", delay=delay, width=width, note=note,
+                     status="cannot" if problem else "ok", reason=problem or "",
                      problem=problem, rounding=rounding, event=plan.open_edge, latency=cl.latency,
                      cable_delay=cable_delay)
 

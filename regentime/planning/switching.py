@@ -301,11 +301,11 @@ def _window_checks(label, res: sw.WindowResult, ev: sw.SwitchEvent, rise: float,
             f"10–90 % {kind} time {rise * 1e9:.3g} ns ({s.edge}), stretched pulse {fwhm * 1e12:.4g} ps FWHM")
     out: list[Check] = []
     if res.exists:
-        if gap < rise:
-            out.append(Check("error", "window", head + f": the gap is shorter than the {kind} time, so the "
-                             f"edge cannot fall between the crossings (the Jones model finds a "
-                             f"{res.width * 1e9:.3f} ns range where the partial retardances of the two "
-                             "crossings still add up, but it relies on a perfectly symmetric edge)"
+        if gap < rise:  # feasibility is the Jones model's alone: a warning, not a second rule
+            out.append(Check("warning", "window", head + f": the gap is shorter than the {kind} time; the "
+                             f"Jones model finds a {res.width * 1e9:.3f} ns window where the partial "
+                             "retardances of the two crossings still add up, which relies on the edge "
+                             "being as symmetric as modelled"
                              + _gap_fixes(gap, rise, kind, cavity, optics)))
         if res.ideal < sw.THRESHOLD * res.nominal:
             out.append(Check("warning", "window",

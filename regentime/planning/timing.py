@@ -37,6 +37,8 @@ class TimingRow:
     width: Optional[float] = None  # s (gate channels), None for trigger edges
     note: str = ""
     problem: Optional[str] = None  # why the setting cannot be met (None: fine)
+    status: str = "ok"  # "ok" | "marginal" | "cannot" (docs/timing.md, "Row status")
+    reason: str = ""  # the numbers behind a marginal or cannot status
     rounding: float = 0.0  # s, rounded − exact delay
     event: Optional[float] = None  # s, time of the event the channel causes (edge, light ...)
     latency: float = 0.0  # s, device latency used
@@ -45,6 +47,7 @@ class TimingRow:
     def to_dict(self) -> dict:
         return {"output": self.output, "drives": self.drives, "delay_s": self.delay,
                 "width_s": self.width, "note": self.note, "problem": self.problem,
+                "status": self.status, "reason": self.reason,
                 "rounding_s": self.rounding, "event_s": self.event, "latency_s": self.latency,
                 "cable_delay_s": self.cable_delay}
 
@@ -221,14 +224,47 @@ def timing_table(cavity: Cavity, optics: CavityOptics, buildup, switching) -> Ti
             problem = _join(problem, h)
             checks.append(Check("error", "timing", f"{cavity.outputs.get(ch.drives, ch.drives)} "
                                                    f"({ch.drives}): {h}"))
+        status, reason = _row_status(ch.drives, problem, sp, s, res)
+        if status == "marginal":
+            checks.append(Check("warning", "timing", f"{cavity.outputs.get(ch.drives, ch.drives)} "
+                                                     f"({ch.drives}) is marginal: {reason}"))
         rows.append(TimingRow(output=cavity.outputs.get(ch.drives, ch.drives), drives=ch.drives,
                               delay=delay, width=width, note="; ".join(parts), problem=problem,
+                              status=status, reason=reason,
                               rounding=rounding, event=event, latency=ch.latency, cable_delay=ch.cable))
     if res and sp.has_windows and res / 2 > 0.5 * sp.margin:
         checks.append(Check("warning", "timing",
                             f"the generator step {res * 1e12:.4g} ps takes more than half the ±{sp.margin * 1e9:.3f} ns margin"))
     return TimingTable(rows=rows, seed_pulse_index=sp.seed_pulse_index, seed_time=t_m,
                        resolution=res, checks=checks)
+
+
+def _row_status(drives: str, problem: Optional[str], sp, switch, step: Optional[float]) -> tuple[str, str]:
+    """(status, reason) of one generator row.
+
+    ``cannot``: the row has a problem (no window from the Jones model, a negative delay, a gate
+    longer than ``max_gate``, a switch-out after the next trigger).  ``marginal``, for the
+    rows that place a switching edge: the window's margin (half its width) is below
+    ``switch.min_margin_sigma`` rms jitters, or the generator step exceeds a quarter of the
+    margin.  ``ok`` otherwise.  Reasons name the numbers.
+    """
+    if problem:
+        return "cannot", problem
+    windows = {"switch_on": (sp.on_window,), "switch_off": (sp.off_window,),
+               "gate": (sp.on_window, sp.off_window)}.get(drives)
+    if windows is None:
+        return "ok", ""
+    reasons = []
+    for w in windows:
+        margin = 0.5 * (w[1] - w[0])
+        need = switch.min_margin_sigma * switch.jitter
+        if switch.jitter > 0 and margin < need:
+            reasons.append(f"margin ±{margin * 1e12:.0f} ps is {margin / switch.jitter:.1f} σ of the "
+                           f"{switch.jitter * 1e12:.0f} ps rms jitter, below {switch.min_margin_sigma:g} σ")
+        if step and step > 0.25 * margin:
+            reasons.append(f"the generator step {step * 1e12:.4g} ps exceeds a quarter of the "
+                           f"±{margin * 1e12:.0f} ps margin")
+    return ("marginal", "; ".join(reasons)) if reasons else ("ok", "")
 
 
 def _join(a: Optional[str], b: str) -> str:

@@ -59,7 +59,7 @@ def table_rows(plan) -> list[list[str]]:
     for r in ordered_rows(plan):
         rows.append([r.output, _DRIVES.get(r.drives, r.drives), bench_time(r.delay),
                      bench_time(r.width) if r.width is not None else "—", bench_time(r.event),
-                     "CANNOT BE MET" if r.problem else "ok"])
+                     {"cannot": "CANNOT BE MET", "marginal": "MARGINAL"}.get(r.status, r.status)])
     return rows
 
 
