@@ -57,8 +57,30 @@ class BuildupPlan:
         return self.gain.stored_fluence(self.stored_at_injection)
 
     @property
+    def output_energies(self) -> tuple[float, ...]:
+        """The output energies (J) of one steady-state cycle at the switch-out, highest first.
+
+        Period 1 (and every pulsed pump): the one energy.  Period p = 2, 4, …: the p energies
+        the shots repeat.  Irregular (period 0): the highest and the lowest of the observed
+        shots.  Never the unstable period-1 fixed point (docs/stability.md)."""
+        shots = self.shots
+        if not self.continuous or shots is None or shots.period == 1:
+            return (float(self.output[self.dump_round_trip]),)
+        if shots.period == 0:
+            return (float(shots.maximum), float(shots.minimum))
+        cycle = np.sort(np.asarray(shots.outputs[-shots.period:], dtype=float))[::-1]
+        return tuple(float(x) for x in cycle)
+
+    @property
     def output_energy(self) -> float:
-        return float(self.output[self.dump_round_trip])
+        """Output energy per shot (J): the one energy of a period-1 steady state, else the mean
+        over one cycle (irregular: over the observed shots)."""
+        shots = self.shots
+        if not self.continuous or shots is None or shots.period == 1:
+            return float(self.output[self.dump_round_trip])
+        if shots.period == 0:
+            return float(shots.mean)
+        return float(np.mean(self.output_energies))
 
     @property
     def extraction_efficiency(self) -> float:

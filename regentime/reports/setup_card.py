@@ -39,12 +39,25 @@ def _when(when: Optional[_dt.datetime]) -> str:
     return (when or _dt.datetime.now()).strftime("%Y-%m-%d %H:%M")
 
 
+def _output_text(b) -> str:
+    """'3.41 mJ', or for a steady state that is not one energy 'alternates between 47.5 µJ and
+    19.1 µJ (period 2, mean 33.3 µJ)' / 'irregular, between … and … (mean …)'."""
+    if b.period == 1:
+        return eng(b.output_energy, "J")
+    energies = b.output_energies
+    if b.period == 0:
+        return (f"irregular, between {eng(energies[0], 'J')} and {eng(energies[-1], 'J')} "
+                f"(mean {eng(b.output_energy, 'J')})")
+    listed = ", ".join(eng(e, "J") for e in energies[:-1]) + f" and {eng(energies[-1], 'J')}"
+    return f"alternates between {listed} (period {b.period}, mean {eng(b.output_energy, 'J')})"
+
+
 def key_lines(plan) -> list[str]:
     b = plan.buildup
     sp = plan.switching
     lines = [
         f"round trip T_rt {ns(plan.round_trip_time)} (optical path {plan.optics.optical_path:.4f} m one way)",
-        f"switch out after round trip {b.dump_round_trip} ({b.rule}); output {eng(b.output_energy, 'J')}, "
+        f"switch out after round trip {b.dump_round_trip} ({b.rule}); output {_output_text(b)}, "
         f"extraction {b.extraction_efficiency:.1%}",
     ]
     if sp is not None:
