@@ -28,7 +28,9 @@ def summary_line(plan, override: Any = None) -> str:
         f"output {eng(b.output_energy, 'J', 4)}, {b.extraction_efficiency * 100:.1f} % extracted",
     ]
     if b.continuous and b.period != 1:
-        parts.append("period " + ("irregular" if b.period == 0 else str(b.period)))
+        shots = " / ".join(eng(e, "J", 4) for e in b.output_energies)
+        kind = "irregular, between" if b.period == 0 else f"period {b.period}, alternates"
+        parts.append(f"{kind} {shots}")
     return " │ ".join(parts)
 
 
