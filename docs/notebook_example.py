@@ -15,7 +15,7 @@ import matplotlib.pyplot as plt
 
 import regentime
 
-ti = Path(regentime.__file__).resolve().parent.parent / "cavities" / "ti_sapphire_1khz.yaml"
+ti = Path(__file__).resolve().parent.parent / "cavities" / "ti_sapphire_1khz.yaml"  # the repository's example
 out = Path(__file__).resolve().parent
 
 # %% one plan: the numbers the CLI prints, as SI floats
