@@ -77,3 +77,11 @@ def test_pulsed_says_period_one_by_construction(tmp_path, capsys):
     p.write_text(sc.PULSED, encoding="utf-8")
     rc = main(["stability", str(p), "--rates", "1kHz,10kHz", "--round-trips", "5:10"])
     assert rc == 0 and "period 1 by construction" in capsys.readouterr().out
+
+
+def test_pulsed_pump_says_there_is_no_shot_to_shot_coupling(capsys):
+    from conftest import EXAMPLES_DIR
+
+    assert main(["stability", str(EXAMPLES_DIR / "ti_sapphire_1khz.yaml"), "--round-trips", "1:30"]) == 0
+    err = capsys.readouterr().err
+    assert "pulsed pump" in err and "no shot-to-shot coupling" in err

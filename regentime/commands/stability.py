@@ -156,6 +156,11 @@ def run(args) -> int:
         cavity = replace(cavity, dump=dump)
     f0 = cavity.repetition_rate
     continuous = cavity.pump.mode == "continuous"
+    if not continuous:
+        print("note: pulsed pump: each shot starts from a freshly pumped crystal (what is left of "
+              "the previous shot is not carried over in this model), so there is no shot-to-shot "
+              "coupling and every point of the map is period 1 by construction; the map matters "
+              "for a continuous pump", file=sys.stderr)
     axis, values = "rate", None
     if args.seed_energies:
         axis, values = "seed", parse_values(args.seed_energies, "energy", "--seed-energies")
