@@ -108,7 +108,7 @@ def plan_cleaner(cavity: Cavity, main_energy: float, main_time: float, round_tri
             f"with the pulse (±{cavity.seed.duration * 1e12:.0f} ps) do not fit inside one round trip "
             f"({trt * 1e9:.3f} ns) around the main pulse: the nearest satellites pass on the edges and the "
             f"main pulse sees {t_m / cl.transmission * 100:.1f} % of the open transmission"))
-    elif sigma > 0 and margin < 3 * sigma:
+    elif sigma > 0 and margin < cavity.switch.min_margin_sigma * sigma:
         checks.append(Check("warning", "cleaner",
                                    f"cleaner gate margin {margin * 1e12:.0f} ps is {margin / sigma:.1f} σ of the "
                                    f"switch jitter ({sigma * 1e12:.0f} ps rms)"))

@@ -37,7 +37,6 @@ from regentime.planning.optics import C_LIGHT, CavityOptics
 from regentime.planning.checks import Check
 
 VOLTAGE_ERRORS = (-0.10, -0.05, -0.02, -0.01, 0.0, 0.01, 0.02, 0.05, 0.10)
-MIN_SIGMA = 3.0  # common practice: keep the timing margin at least ~3 rms jitters
 
 
 @dataclass(frozen=True)
@@ -226,10 +225,10 @@ def plan_switching(cavity: Cavity, optics: CavityOptics, buildup) -> SwitchPlan:
     margin = 0.5 * min(widths) if on_res.exists and off_res.exists else 0.0
     margin_sigma = margin / s.jitter if s.jitter > 0 else math.inf
     if on_res.exists and off_res.exists:
-        if margin_sigma < MIN_SIGMA:
+        if margin_sigma < s.min_margin_sigma:  # switch.min_margin_sigma, default 3 (common practice)
             checks.append(Check("warning", "window",
                                 f"timing margin ±{margin * 1e9:.3f} ns is only {margin_sigma:.1f} σ of the "
-                                f"{s.jitter * 1e12:.0f} ps rms jitter (common practice: at least {MIN_SIGMA:g} σ)"))
+                                f"{s.jitter * 1e12:.0f} ps rms jitter (common practice: at least {s.min_margin_sigma:g} σ, switch.min_margin_sigma)"))
         else:
             checks.append(Check("info", "window",
                                 f"timing margin ±{margin * 1e9:.3f} ns = {margin_sigma:.1f} σ of the jitter"))
