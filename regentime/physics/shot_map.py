@@ -22,10 +22,11 @@ point of a map.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 
+from regentime.physics import dynamics as dyn
 from regentime.physics.buildup import GainModel, RoundTripPath, shot
 
 _REL_TOL = 1e-10  # relative tolerance on the stored energy at the fixed point
@@ -58,8 +59,6 @@ def fixed_points(gm: GainModel, path: RoundTripPath, seed, n_rt, period, pump_ra
     """
     n_rt = np.asarray(n_rt)
     if pump_rate is not None:
-        from dataclasses import replace
-
         gm = replace(gm, pump_rate=np.asarray(pump_rate, dtype=float))
         rate = np.asarray(pump_rate, dtype=float)
     else:
@@ -163,8 +162,6 @@ def iterate_shots(gm: GainModel, path: RoundTripPath, seed, n_rt: int, period: f
 
 
 def _iterate_tables(gm, path, seed, n_rt, period, transient, observe, extend_rounds) -> ShotSequence:
-    from regentime.physics import dynamics as dyn  # noqa: F401 (physics)
-
     nodes, top = 1025, (8193 if gm.grid.rings == 1 else 2049)
     while True:
         tb = dyn.build_tables(gm, path, float(np.asarray(seed).ravel()[0]), gm.pump_rate, [int(n_rt)], nodes=nodes)
