@@ -58,7 +58,19 @@ class BuildupPlan:
 
     @property
     def output_energy(self) -> float:
+        """Output energy at the dump round trip (J); when the shots are not period 1, the mean
+        over one cycle (irregular: over the observed shots), never the unstable fixed point."""
+        if self.shots is not None and self.shots.period != 1:
+            return float(self.shots.mean)
         return float(self.output[self.dump_round_trip])
+
+    @property
+    def output_energies(self) -> np.ndarray:
+        """The energies of one cycle of shots, highest first (J); period 1: [E]; irregular:
+        the highest and the lowest observed shot."""
+        if self.shots is not None and self.shots.period != 1:
+            return self.shots.cycle_energies()
+        return np.array([self.output_energy])
 
     @property
     def extraction_efficiency(self) -> float:
@@ -79,8 +91,7 @@ class BuildupPlan:
         res = replace(self.result, output=self.result.output * factor)
         shots = self.shots
         if shots is not None:
-            shots = steady.ShotSequence(shots.period, shots.outputs * factor, shots.mean * factor,
-                                        shots.minimum * factor, shots.maximum * factor)
+            shots = shots.scaled(factor)
         return replace(self, path=replace(self.path, switching_efficiency=efficiency), result=res,
                        output=self.output * factor, shots=shots)
 
@@ -277,6 +288,26 @@ def choose_dump(output: np.ndarray, s_pump: np.ndarray, s_seed: np.ndarray, rule
     return peak, "auto"
 
 
+def _require_period_one(output, slope, stable, cavity: Cavity) -> None:
+    """``auto`` and ``steady`` keep to period-1 round trips: a :class:`PlanError` naming the
+    nearest stable setting when no round trip has a stable period-1 steady state."""
+    valid = np.isfinite(output)
+    valid[0] = False
+    with np.errstate(invalid="ignore"):
+        known = valid & np.isfinite(slope)
+    if not known.any() or (valid & stable).any():
+        return
+    from regentime.errors import PlanError
+
+    mult = np.where(known, np.abs(slope), np.inf)
+    best = int(np.argmin(mult))
+    raise PlanError(
+        f"dump {cavity.dump}: no switch-out round trip has a stable period-1 steady state at "
+        f"{cavity.repetition_rate:g} Hz (the shots alternate); nearest stable setting: round trip "
+        f"{best} (shot-map multiplier {mult[best]:.3f}, stable below 1), or a lower pump power, "
+        "a higher repetition rate or a larger seed energy; or give dump: N to accept the alternation")
+
+
 def _peak_round_trip(output: np.ndarray, cavity: Cavity, gm: GainModel, g0: float) -> int:
     """Index of the largest finite output energy at N ≥ 1; a :class:`PlanError` with the
     numbers when no round trip gives a finite energy (the gain overflows any float: the mode
@@ -336,6 +367,8 @@ def plan_buildup(cavity: Cavity, optics: CavityOptics, switching_efficiency: flo
         with np.errstate(invalid="ignore"):
             stable = ~(np.abs(slope) >= 1.0)  # unknown (NaN) counts as allowed
     dump, rule = choose_dump(output, s_pump, s_seed, cavity.dump if given is None else given, stable)
+    if continuous and given is None:
+        _require_period_one(output, slope, stable, cavity)
     if continuous:
         # the operating point: the build-up from the steady-state stored energy for this N
         period = 1.0 / cavity.repetition_rate
@@ -356,7 +389,8 @@ def plan_buildup(cavity: Cavity, optics: CavityOptics, switching_efficiency: flo
             x_star, sl, _ = steady.fixed_points(gm, path, np.array([seed]), np.array([dump]), period)
             stored0, multiplier = float(x_star[0]), sl[0]
         if abs(multiplier) >= 1.0:
-            shots = steady.iterate_shots(gm, path, seed, dump, period)
+            shots = steady.iterate_shots(gm, path, seed, dump, period, transient=steady.DUMP_TRANSIENT_SHOTS,
+                                         observe=steady.DUMP_OBSERVED_SHOTS)
         else:
             shots = steady.ShotSequence(1, np.array([output[dump]]), float(output[dump]),
                                         float(output[dump]), float(output[dump]))

@@ -79,6 +79,7 @@ def plan_to_dict(plan) -> dict:
             "rule": b.rule,
             "peak_round_trip": b.peak_round_trip,
             "period": b.period,
+            "output_energies_J": [float(e) for e in b.output_energies],
         },
     }
     if plan.switching is not None:

@@ -51,11 +51,22 @@ def key_lines(plan) -> list[str]:
         f"switch out after round trip {b.dump_round_trip} ({b.rule}); output {eng(b.output_energy, 'J')}, "
         f"extraction {b.extraction_efficiency:.1%}",
     ]
+    if b.continuous and b.period != 1:
+        lines.append(_alternation(b))
     if sp is not None:
         lines.append(f"seed pulse #{sp.seed_pulse_index}: reaches the polarizer {_ns(sp.seed_time)} after the "
                      f"trigger input (arrival {_ns(plan.cavity.seed.arrival)} + {sp.seed_pulse_index} × "
                      f"{_ns(1.0 / plan.cavity.seed.train_rate)})")
     return lines
+
+
+def _alternation(b) -> str:
+    """The not-period-1 output in words: the shots alternate between the cycle's energies."""
+    e = b.output_energies
+    kind = "irregularly, " if b.period == 0 else (f"period {b.period}, " if b.period > 2 else "")
+    cycle = (f"; one cycle: {', '.join(eng(x, 'J') for x in e)}" if b.period > 2 else "")
+    return (f"shot to shot the output alternates between {eng(float(e.max()), 'J')} and "
+            f"{eng(float(e.min()), 'J')} ({kind}mean {eng(b.output_energy, 'J')}{cycle})")
 
 
 def table_rows(plan) -> list[list[str]]:

@@ -41,7 +41,9 @@ def summary_line(plan, override: Any = None) -> str:
         f"output {eng(b.output_energy, 'J', 4)}, {b.extraction_efficiency * 100:.1f} % extracted",
     ]
     if b.continuous and b.period != 1:
-        parts.append("period " + ("irregular" if b.period == 0 else str(b.period)))
+        e = b.output_energies
+        parts.append(f"alternates between {eng(float(e.max()), 'J', 4)} and {eng(float(e.min()), 'J', 4)} ("
+                     + ("irregular" if b.period == 0 else f"period {b.period}") + ")")
     return " │ ".join(parts)
 
 
