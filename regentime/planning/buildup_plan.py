@@ -101,8 +101,7 @@ class BuildupPlan:
         res = replace(self.result, output=self.result.output * factor)
         shots = self.shots
         if shots is not None:
-            shots = steady.ShotSequence(shots.period, shots.outputs * factor, shots.mean * factor,
-                                        shots.minimum * factor, shots.maximum * factor)
+            shots = shots.scaled(factor)
         return replace(self, path=replace(self.path, switching_efficiency=efficiency), result=res,
                        output=self.output * factor, shots=shots)
 
@@ -211,11 +210,14 @@ def _continuous(cavity: Cavity, gm: GainModel, path: RoundTripPath, n: int, must
         # ring model: the exact steady state carries every ring's stored fluence from shot to
         # shot.  Solved for a coarse set of N, then for every N within reach of the peak, with
         # the pump and seed variants there (the sensitivities); other N are not shown.
-        from regentime.planning.ring_steady import ring_fixed_points, ring_multiplier
+        from regentime.physics import ring_map
+
+        jacs = {}
 
         def solve(idx):
-            o_r, j_r = ring_fixed_points(gm, path, np.full(idx.size, seed), idx + 1, period,
-                                         gm.stored_fluence(stars[0][idx]))
+            o_r, j_r, jac, _ = ring_map.ring_fixed_points(gm, path, np.full(idx.size, seed), idx + 1, period,
+                                                          gm.stored_fluence(stars[0][idx]))
+            jacs.update({int(k): m for k, m in zip(idx, jac)})
             return o_r, j_r
 
         top1 = int(np.nanargmax(nominal))
@@ -235,18 +237,20 @@ def _continuous(cavity: Cavity, gm: GainModel, path: RoundTripPath, n: int, must
         states.update({int(k): j for k, j in zip(new, j_f)})
         outs = np.full(outs.shape, np.nan)  # shown only where the ring model was solved
         outs[0] = ring_out
-        fine_states = np.array([states[int(k)] for k in fine])
-        # pump and seed variants (the sensitivities) where the steady rule looks: ≥ 90 % of the peak
+        # pump and seed variants (the sensitivities) where the steady rule looks: ≥ 90 % of the
+        # peak, each from its nominal steady state with the same Jacobian (chord steps)
         band = fine[ring_out[fine] >= 0.9 * np.nanmax(ring_out)]
         band_states = np.array([states[int(k)] for k in band])
+        band_jacs = np.array([jacs[int(k)] for k in band])
         nv = len(variants) - 1
         rates = np.concatenate([np.full(band.size, gm.pump_rate * fp) for fp, _ in variants[1:]])
         seeds_v = np.concatenate([np.full(band.size, seed * fs) for _, fs in variants[1:]])
-        o_v, _ = ring_fixed_points(replace(gm, pump_rate=rates), path, seeds_v, np.tile(band + 1, nv),
-                                   period, np.tile(band_states, (nv, 1)))
+        o_v, _ = ring_map.perturbed_fixed_points(replace(gm, pump_rate=rates), path, seeds_v,
+                                                 np.tile(band + 1, nv), period, np.tile(band_states, (nv, 1)),
+                                                 np.tile(band_jacs, (nv, 1, 1)))
         outs[1:, band] = o_v.reshape(nv, band.size)
         slope = np.full(n_fit, np.nan)
-        slope[fine] = ring_multiplier(gm, path, np.full(fine.size, seed), fine + 1, period, fine_states)
+        slope[fine] = ring_map.multiplier(np.array([jacs[int(k)] for k in fine]))
         ring_state = {int(k) + 1: j for k, j in states.items()}
     elif cand.size:  # one-ring model: every N, polished on the exact shot map
         nv = len(variants)
@@ -292,6 +296,26 @@ def choose_dump(output: np.ndarray, s_pump: np.ndarray, s_seed: np.ndarray, rule
             return int(np.argmin(np.where(ok, noise, np.inf))), "steady"
         return peak, "steady"
     return peak, "auto"
+
+
+def _require_period_one(output, slope, stable, cavity: Cavity) -> None:
+    """``auto`` and ``steady`` keep to period-1 round trips: a :class:`PlanError` naming the
+    nearest stable setting when no round trip has a stable period-1 steady state."""
+    valid = np.isfinite(output)
+    valid[0] = False
+    with np.errstate(invalid="ignore"):
+        known = valid & np.isfinite(slope)
+    if not known.any() or (valid & stable).any():
+        return
+    from regentime.errors import PlanError
+
+    mult = np.where(known, np.abs(slope), np.inf)
+    best = int(np.argmin(mult))
+    raise PlanError(
+        f"dump {cavity.dump}: no switch-out round trip has a stable period-1 steady state at "
+        f"{cavity.repetition_rate:g} Hz (the shots alternate); nearest stable setting: round trip "
+        f"{best} (shot-map multiplier {mult[best]:.3f}, stable below 1), or a lower pump power, "
+        "a higher repetition rate or a larger seed energy; or give dump: N to accept the alternation")
 
 
 def _peak_round_trip(output: np.ndarray, cavity: Cavity, gm: GainModel, g0: float) -> int:
@@ -354,19 +378,21 @@ def plan_buildup(cavity: Cavity, optics: CavityOptics, switching_efficiency: flo
         with np.errstate(invalid="ignore"):
             stable = ~(np.abs(slope) >= 1.0)  # unknown (NaN) counts as allowed
     dump, rule = choose_dump(output, s_pump, s_seed, cavity.dump.rule if given is None else given, stable)
+    if continuous and given is None:
+        _require_period_one(output, slope, stable, cavity)
     if continuous:
         # the operating point: the build-up from the steady-state stored energy for this N
         period = 1.0 / cavity.repetition_rate
         seed = cavity.seed.energy
         j_star = ring_state.get(dump)
         if gm.grid.rings > 1 and j_star is None:  # a round trip outside the scanned set
-            from regentime.planning.ring_steady import ring_fixed_points, ring_multiplier
+            from regentime.physics import ring_map
 
             x1, _, _ = steady.fixed_points(gm, path, np.array([seed]), np.array([dump]), period)
-            o_r, j_r = ring_fixed_points(gm, path, np.array([seed]), np.array([dump]), period,
-                                         gm.stored_fluence(x1))
+            o_r, j_r, jac, _ = ring_map.ring_fixed_points(gm, path, np.array([seed]), np.array([dump]), period,
+                                                          gm.stored_fluence(x1))
             j_star, output[dump] = j_r[0], o_r[0]
-            slope[dump] = ring_multiplier(gm, path, np.array([seed]), np.array([dump]), period, j_r)[0]
+            slope[dump] = ring_map.multiplier(jac)[0]
         if j_star is not None:
             stored0 = float(gm.stored_in(j_star))
             multiplier = slope[dump]
@@ -374,7 +400,8 @@ def plan_buildup(cavity: Cavity, optics: CavityOptics, switching_efficiency: flo
             x_star, sl, _ = steady.fixed_points(gm, path, np.array([seed]), np.array([dump]), period)
             stored0, multiplier = float(x_star[0]), sl[0]
         if abs(multiplier) >= 1.0:
-            shots = steady.iterate_shots(gm, path, seed, dump, period)
+            shots = steady.iterate_shots(gm, path, seed, dump, period, transient=steady.DUMP_TRANSIENT_SHOTS,
+                                         observe=steady.DUMP_OBSERVED_SHOTS)
         else:
             shots = steady.ShotSequence(1, np.array([output[dump]]), float(output[dump]),
                                         float(output[dump]), float(output[dump]))

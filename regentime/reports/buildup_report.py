@@ -60,6 +60,9 @@ def summary_lines(plan) -> list[str]:
     ]
     if b.continuous:
         per = "period 1 (one energy)" if b.period == 1 else ("irregular" if b.period == 0 else f"period {b.period}")
+        if b.period != 1:
+            e = b.output_energies
+            per += f": alternates between {eng(max(e), 'J')} and {eng(min(e), 'J')}"
         lines.append(f"shot to shot    continuous pump at {eng(cav.repetition_rate, 'Hz')}: steady state {per}")
     return lines
 
@@ -88,7 +91,8 @@ def buildup_json(plan) -> str:
     b = plan.buildup
     d = {"round_trip_time_s": plan.optics.round_trip_time, "buildup": buildup_dict(plan),
          "dump": {"round_trip": b.dump_round_trip, "output_energy_J": b.output_energy,
-                  "extraction_efficiency": b.extraction_efficiency, "rule": b.rule}}
+                  "extraction_efficiency": b.extraction_efficiency, "rule": b.rule,
+                  "period": b.period, "output_energies_J": [float(e) for e in b.output_energies]}}
     return json.dumps(_clean(d), indent=2, ensure_ascii=False)
 
 

@@ -28,9 +28,9 @@ def summary_line(plan, override: Any = None) -> str:
         f"output {eng(b.output_energy, 'J', 4)}, {b.extraction_efficiency * 100:.1f} % extracted",
     ]
     if b.continuous and b.period != 1:
-        shots = " / ".join(eng(e, "J", 4) for e in b.output_energies)
-        kind = "irregular, between" if b.period == 0 else f"period {b.period}, alternates"
-        parts.append(f"{kind} {shots}")
+        e = b.output_energies
+        parts.append(f"alternates between {eng(max(e), 'J', 4)} and {eng(min(e), 'J', 4)} ("
+                     + ("irregular" if b.period == 0 else f"period {b.period}") + ")")
     return " │ ".join(parts)
 
 
